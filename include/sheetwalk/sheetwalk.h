@@ -1,0 +1,11 @@
+/* sheetwalk — continuation, branch points and monodromy of multivalued
+ * complex functions.  This header includes the whole public API. */
+#ifndef SHEETWALK_H
+#define SHEETWALK_H
+#include "sheetwalk/error.h"
+#include "sheetwalk/expr.h"
+#include "sheetwalk/path.h"
+#include "sheetwalk/func.h"
+#include "sheetwalk/track.h"
+#include "sheetwalk/monodromy.h"
+#endif

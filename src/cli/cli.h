@@ -1,0 +1,85 @@
+/* The command-line front end: shared option parsing and output helpers.
+ * Front ends only parse, call the library and format; main() alone exits. */
+#ifndef SW_CLI_H
+#define SW_CLI_H
+
+#include <jansson.h>
+#include <stdio.h>
+
+#include "sheetwalk/sheetwalk.h"
+
+/* Which shared options a command accepts. */
+enum {
+    OPT_FUNC = 1u << 0,     /* -f / -c / --set */
+    OPT_PATH = 1u << 1,     /* -p */
+    OPT_START = 1u << 2,    /* --start / --at */
+    OPT_CUT = 1u << 3,      /* --cut */
+    OPT_FIX = 1u << 4,      /* --fix / --eval */
+    OPT_CERTIFY = 1u << 5,  /* --certify */
+    OPT_JSON = 1u << 6,     /* --json */
+    OPT_GRAPH = 1u << 7,    /* --graph FILE */
+    OPT_WHICH = 1u << 8,    /* --base / --point / --value */
+    OPT_INTEGRAND = 1u << 9,/* --integrand / --bank */
+    OPT_SAMPLES = 1u << 10, /* --samples / --tolerance */
+    OPT_OUTPUT = 1u << 11   /* -o FILE */
+};
+
+#define CLI_MAX_LIST 64
+
+typedef struct cli {
+    const char *cmd;
+    unsigned accepted;
+    const char *function, *curve, *path, *start, *at, *fix;
+    const char *cuts[CLI_MAX_LIST];
+    size_t ncuts;
+    const char *evals[CLI_MAX_LIST];
+    size_t nevals;
+    int certify, json;
+    const char *graph, *base, *point, *value, *integrand, *bank, *samples, *output,
+        *tolerance;
+    sw_params params;
+    /* loaded by cli_load */
+    sw_func *f;
+    sw_path p;
+    int have_path;
+} cli;
+
+void cli_init(cli *c, const char *cmd, unsigned accepted);
+void cli_clear(cli *c);
+
+/* Parse argv (argv[0] is the command name).  Returns -1 to go on, or an exit
+ * code (0 after --help, 2 on a usage error, already reported). */
+int cli_parse(cli *c, int argc, char **argv, const char *help);
+
+/* Report a failure: one line "sheetwalk: CMD: message" on stderr; returns the
+ * exit code for the status. */
+int cli_fail(const cli *c, const sw_error *err);
+int cli_usage(const cli *c, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 2, 3)))
+#endif
+    ;
+
+/* Build c->f from -f/-c (exactly one required) and, when NEED_PATH, c->p. */
+int cli_load(cli *c, int need_path, sw_error *err);
+/* The start germ from --start / --at (or the default). */
+int cli_start_germ(cli *c, sw_germ *g, const sw_track_opts *o, sw_error *err);
+
+/* JSON helpers. */
+json_t *json_cplx(double complex z);
+json_t *cli_doc(const cli *c);          /* {"command": ..., "format": 1, "function": {...}} */
+void cli_emit(json_t *doc);             /* print one document and free it */
+json_t *cli_points_json(const sw_points *pts, const sw_func *f);
+void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f);
+
+/* Human formatting of a complex number, 12 significant digits, into BUF. */
+const char *cfmt(char *buf, size_t n, double complex z);
+
+/* Commands. */
+int cmd_demo(int argc, char **argv);
+int cmd_points(int argc, char **argv);
+int cmd_trace(int argc, char **argv);
+int cmd_loop(int argc, char **argv);
+int cmd_sheets(int argc, char **argv);
+
+#endif

@@ -1,0 +1,426 @@
+/* Shared option parsing and output helpers of the command-line front end. */
+#include <getopt.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "cli.h"
+
+void cli_init(cli *c, const char *cmd, unsigned accepted)
+{
+    memset(c, 0, sizeof *c);
+    c->cmd = cmd;
+    c->accepted = accepted;
+    sw_params_init(&c->params);
+    sw_path_init(&c->p);
+}
+
+void cli_clear(cli *c)
+{
+    sw_params_clear(&c->params);
+    sw_path_clear(&c->p);
+    sw_func_free(c->f);
+    c->f = NULL;
+}
+
+int cli_fail(const cli *c, const sw_error *err)
+{
+    fprintf(stderr, "sheetwalk: %s: %s\n", c->cmd, err->msg[0] ? err->msg :
+            sw_status_name(err->code));
+    return sw_status_exit_code(err->code);
+}
+
+int cli_usage(const cli *c, const char *fmt, ...)
+{
+    va_list ap;
+    fprintf(stderr, "sheetwalk: %s: ", c->cmd);
+    va_start(ap, fmt);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fprintf(stderr, " (see 'sheetwalk %s --help')\n", c->cmd);
+    return 2;
+}
+
+enum {
+    LO_SET = 1000, LO_START, LO_AT, LO_CUT, LO_FIX, LO_EVAL, LO_CERTIFY, LO_JSON, LO_GRAPH,
+    LO_BASE, LO_POINT, LO_VALUE, LO_INTEGRAND, LO_BANK, LO_SAMPLES, LO_TOLERANCE
+};
+
+static const struct option long_opts[] = {
+    {"function", required_argument, NULL, 'f'}, {"curve", required_argument, NULL, 'c'},
+    {"set", required_argument, NULL, LO_SET},   {"path", required_argument, NULL, 'p'},
+    {"start", required_argument, NULL, LO_START}, {"at", required_argument, NULL, LO_AT},
+    {"cut", required_argument, NULL, LO_CUT},   {"fix", required_argument, NULL, LO_FIX},
+    {"eval", required_argument, NULL, LO_EVAL}, {"certify", no_argument, NULL, LO_CERTIFY},
+    {"json", no_argument, NULL, LO_JSON},       {"graph", required_argument, NULL, LO_GRAPH},
+    {"base", required_argument, NULL, LO_BASE}, {"point", required_argument, NULL, LO_POINT},
+    {"value", required_argument, NULL, LO_VALUE},
+    {"integrand", required_argument, NULL, LO_INTEGRAND},
+    {"bank", required_argument, NULL, LO_BANK}, {"samples", required_argument, NULL, LO_SAMPLES},
+    {"tolerance", required_argument, NULL, LO_TOLERANCE},
+    {"output", required_argument, NULL, 'o'},   {"help", no_argument, NULL, 'h'},
+    {NULL, 0, NULL, 0}};
+
+static int needs(cli *c, unsigned bit, const char *name)
+{
+    if (c->accepted & bit)
+        return 1;
+    cli_usage(c, "option %s is not used by this command", name);
+    return 0;
+}
+
+static int once(cli *c, const char **slot, const char *val, const char *name)
+{
+    if (*slot != NULL) {
+        cli_usage(c, "option %s given twice", name);
+        return 0;
+    }
+    *slot = val;
+    return 1;
+}
+
+int cli_parse(cli *c, int argc, char **argv, const char *help)
+{
+    opterr = 0;
+    optind = 1;
+    for (;;) {
+        int lidx = -1;
+        int ch = getopt_long(argc, argv, "+f:c:p:o:h", long_opts, &lidx);
+        if (ch == -1)
+            break;
+        int ok = 1;
+        switch (ch) {
+        case 'h':
+            fputs(help, stdout);
+            return 0;
+        case 'f':
+            ok = needs(c, OPT_FUNC, "--function") && once(c, &c->function, optarg, "--function");
+            break;
+        case 'c':
+            ok = needs(c, OPT_FUNC, "--curve") && once(c, &c->curve, optarg, "--curve");
+            break;
+        case LO_SET: {
+            if (!needs(c, OPT_FUNC, "--set"))
+                return 2;
+            sw_error err;
+            if (sw_params_assign(&c->params, optarg, &err) != SW_OK)
+                return cli_usage(c, "--set %s: %s", optarg, err.msg);
+            break;
+        }
+        case 'p': ok = needs(c, OPT_PATH, "--path") && once(c, &c->path, optarg, "--path"); break;
+        case LO_START:
+            ok = needs(c, OPT_START, "--start") && once(c, &c->start, optarg, "--start");
+            break;
+        case LO_AT: ok = needs(c, OPT_START, "--at") && once(c, &c->at, optarg, "--at"); break;
+        case LO_CUT:
+            if (!needs(c, OPT_CUT, "--cut"))
+                return 2;
+            if (c->ncuts == CLI_MAX_LIST)
+                return cli_usage(c, "too many --cut options (limit %d)", CLI_MAX_LIST);
+            c->cuts[c->ncuts++] = optarg;
+            break;
+        case LO_FIX: ok = needs(c, OPT_FIX, "--fix") && once(c, &c->fix, optarg, "--fix"); break;
+        case LO_EVAL:
+            if (!needs(c, OPT_FIX, "--eval"))
+                return 2;
+            if (c->nevals == CLI_MAX_LIST)
+                return cli_usage(c, "too many --eval options (limit %d)", CLI_MAX_LIST);
+            c->evals[c->nevals++] = optarg;
+            break;
+        case LO_CERTIFY: ok = needs(c, OPT_CERTIFY, "--certify"); c->certify = 1; break;
+        case LO_JSON: ok = needs(c, OPT_JSON, "--json"); c->json = 1; break;
+        case LO_GRAPH: ok = needs(c, OPT_GRAPH, "--graph") && once(c, &c->graph, optarg, "--graph"); break;
+        case LO_BASE: ok = needs(c, OPT_WHICH, "--base") && once(c, &c->base, optarg, "--base"); break;
+        case LO_POINT: ok = needs(c, OPT_WHICH, "--point") && once(c, &c->point, optarg, "--point"); break;
+        case LO_VALUE: ok = needs(c, OPT_WHICH, "--value") && once(c, &c->value, optarg, "--value"); break;
+        case LO_INTEGRAND:
+            ok = needs(c, OPT_INTEGRAND, "--integrand") &&
+                 once(c, &c->integrand, optarg, "--integrand");
+            break;
+        case LO_BANK: ok = needs(c, OPT_INTEGRAND, "--bank") && once(c, &c->bank, optarg, "--bank"); break;
+        case LO_SAMPLES:
+            ok = needs(c, OPT_SAMPLES, "--samples") && once(c, &c->samples, optarg, "--samples");
+            break;
+        case LO_TOLERANCE:
+            ok = needs(c, OPT_SAMPLES, "--tolerance") &&
+                 once(c, &c->tolerance, optarg, "--tolerance");
+            break;
+        case 'o': ok = needs(c, OPT_OUTPUT, "--output") && once(c, &c->output, optarg, "--output"); break;
+        case ':':
+            return cli_usage(c, "option %s needs a value", argv[optind - 1]);
+        case '?':
+        default:
+            if (optopt && optopt < 256 && optopt != '?')
+                return cli_usage(c, "option -%c needs a value or is unknown", optopt);
+            return cli_usage(c, "unknown option '%s'", argv[optind - 1]);
+        }
+        if (!ok)
+            return 2;
+    }
+    if (optind < argc)
+        return cli_usage(c, "unexpected argument '%s'", argv[optind]);
+    return -1;
+}
+
+int cli_load(cli *c, int need_path, sw_error *err)
+{
+    sw_status st;
+    if (c->function && c->curve)
+        return cli_usage(c, "give either -f EXPR or -c POLY, not both");
+    if (!c->function && !c->curve)
+        return cli_usage(c, "no function: give -f EXPR (an expression in z) or -c POLY (a "
+                            "curve P(z, w) = 0)");
+    if (c->function)
+        st = sw_func_from_expr(&c->f, c->function, &c->params, err);
+    else
+        st = sw_func_from_curve(&c->f, c->curve, &c->params, err);
+    if (st != SW_OK) {
+        sw_error_prefix(err, "%s '%.200s'", c->function ? "expression" : "curve",
+                        c->function ? c->function : c->curve);
+        return cli_fail(c, err);
+    }
+    if (need_path) {
+        if (!c->path)
+            return cli_usage(c, "no path: give -p PATH (a path file or inline vertices such as "
+                                "\"1; 1i; -1\")");
+        if (sw_path_load(&c->p, c->path, &c->params, err) != SW_OK)
+            return cli_fail(c, err);
+        c->have_path = 1;
+    }
+    return -1;
+}
+
+int cli_start_germ(cli *c, sw_germ *g, const sw_track_opts *o, sw_error *err)
+{
+    if (c->start && c->at)
+        return cli_usage(c, "give either --start W or --at Z=W, not both");
+    double complex w;
+    size_t vertex = 0;
+    const double complex *hint = NULL;
+    if (c->start) {
+        if (sw_const_parse(&w, NULL, c->start, &c->params, err) != SW_OK) {
+            sw_error_prefix(err, "--start");
+            return cli_fail(c, err);
+        }
+        hint = &w;
+    } else if (c->at) {
+        const char *eq = strchr(c->at, '=');
+        if (eq == NULL)
+            return cli_usage(c, "--at needs Z=W, got '%s'", c->at);
+        char zt[256];
+        size_t n = (size_t)(eq - c->at);
+        if (n >= sizeof zt)
+            return cli_usage(c, "--at: point too long");
+        memcpy(zt, c->at, n);
+        zt[n] = '\0';
+        double complex z;
+        int bank;
+        if (sw_const_parse(&z, &bank, zt, &c->params, err) != SW_OK ||
+            sw_const_parse(&w, NULL, eq + 1, &c->params, err) != SW_OK) {
+            sw_error_prefix(err, "--at");
+            return cli_fail(c, err);
+        }
+        size_t k;
+        double scale = sw_path_scale(&c->p);
+        for (k = 0; k < c->p.n; k++)
+            if (cabs(c->p.z[k] - z) <= 1e-12 * scale)
+                break;
+        if (k == c->p.n)
+            return cli_usage(c, "--at %s: the point is not a vertex of the path", c->at);
+        vertex = k;
+        hint = &w;
+    }
+    if (sw_track_start_germ(g, c->f, &c->p, vertex, hint, o, err) != SW_OK)
+        return cli_fail(c, err);
+    return -1;
+}
+
+/* ------------------------------------------------------------ output */
+
+json_t *json_cplx(double complex z)
+{
+    json_t *a = json_array();
+    double re = creal(z), im = cimag(z);
+    json_array_append_new(a, isfinite(re) ? json_real(re + 0.0) : json_null());
+    json_array_append_new(a, isfinite(im) ? json_real(im + 0.0) : json_null());
+    return a;
+}
+
+json_t *cli_doc(const cli *c)
+{
+    json_t *d = json_object();
+    json_object_set_new(d, "command", json_string(c->cmd));
+    json_object_set_new(d, "format", json_integer(1));
+    if (c->f) {
+        json_t *fn = json_object();
+        json_object_set_new(fn, "kind", json_string(sw_func_kind_of(c->f) == SW_FUNC_EXPR ?
+                                                    "expression" : "curve"));
+        json_object_set_new(fn, "text", json_string(sw_func_text(c->f)));
+        json_object_set_new(d, "function", fn);
+    }
+    return d;
+}
+
+void cli_emit(json_t *doc)
+{
+    char *s = json_dumps(doc, JSON_REAL_PRECISION(17) | JSON_PRESERVE_ORDER);
+    if (s) {
+        fputs(s, stdout);
+        fputc('\n', stdout);
+        free(s);
+    }
+    json_decref(doc);
+}
+
+const char *cfmt(char *buf, size_t n, double complex z)
+{
+    double re = creal(z), im = cimag(z);
+    if (im == 0)
+        snprintf(buf, n, "%.12g", re + 0.0);
+    else if (re == 0)
+        snprintf(buf, n, "%.12gi", im);
+    else
+        snprintf(buf, n, "%.12g%+.12gi", re, im);
+    return buf;
+}
+
+static json_t *cycles_json(const int *perm, size_t n)
+{
+    json_t *cyc = json_array();
+    char *seen = calloc(n ? n : 1, 1);
+    for (size_t i = 0; seen && i < n; i++) {
+        if (seen[i])
+            continue;
+        json_t *c = json_array();
+        for (size_t j = i; !seen[j]; j = (size_t)perm[j]) {
+            seen[j] = 1;
+            json_array_append_new(c, json_integer((json_int_t)j + 1));
+        }
+        json_array_append_new(cyc, c);
+    }
+    free(seen);
+    return cyc;
+}
+
+static json_t *point_json(const sw_point *pt, const sw_func *f)
+{
+    json_t *o = json_object();
+    if (!pt->at_infinity) {
+        json_object_set_new(o, "z", json_cplx(pt->z));
+        json_object_set_new(o, "enclosure_radius", json_real(pt->radius));
+    }
+    if (sw_func_kind_of(f) == SW_FUNC_EXPR) {
+        if (pt->kind == SW_POINT_BRANCH) {
+            if (pt->is_multiplier)
+                json_object_set_new(o, "multiplier", json_cplx(pt->ratio));
+            else if (pt->is_shift)
+                json_object_set_new(o, "shift", json_cplx(pt->difference));
+        }
+        json_object_set_new(o, "ratio", json_cplx(pt->ratio));
+        json_object_set_new(o, "difference", json_cplx(pt->difference));
+        json_t *t = json_array();
+        for (size_t m = 0; m < pt->nmv && pt->node_turns; m++)
+            json_array_append_new(t, json_integer(pt->node_turns[m]));
+        json_object_set_new(o, "node_turns", t);
+    } else if (pt->perm) {
+        json_object_set_new(o, "cycles", cycles_json(pt->perm, pt->n));
+        json_t *pm = json_array();
+        for (size_t i = 0; i < pt->n; i++)
+            json_array_append_new(pm, json_integer(pt->perm[i] + 1));
+        json_object_set_new(o, "permutation", pm);
+    }
+    json_object_set_new(o, "certified", json_boolean(pt->certified));
+    return o;
+}
+
+json_t *cli_points_json(const sw_points *pts, const sw_func *f)
+{
+    json_t *o = json_object();
+    json_t *bp = json_array(), *reg = json_array(), *poles = json_array();
+    for (size_t k = 0; k < pts->n; k++) {
+        const sw_point *pt = &pts->pt[k];
+        json_array_append_new(pt->kind == SW_POINT_BRANCH ? bp
+                              : pt->kind == SW_POINT_POLE ? poles : reg,
+                              point_json(pt, f));
+    }
+    json_object_set_new(o, "branch_points", bp);
+    json_object_set_new(o, "regular_points", reg);
+    json_object_set_new(o, "poles", poles);
+    json_t *inf = point_json(&pts->infinity, f);
+    json_object_set_new(inf, "branched", pts->complete ? json_boolean(pts->infinity.kind ==
+                                                                      SW_POINT_BRANCH)
+                                                       : json_null());
+    json_object_set_new(o, "infinity", inf);
+    json_object_set_new(o, "complete", json_boolean(pts->complete));
+    if (!pts->complete)
+        json_object_set_new(o, "note", json_string(pts->incomplete));
+    if (pts->nsheets) {
+        json_object_set_new(o, "base", json_cplx(pts->base));
+        json_t *bf = json_array();
+        for (size_t i = 0; i < pts->nsheets && pts->base_fiber; i++)
+            json_array_append_new(bf, json_cplx(pts->base_fiber[i]));
+        json_object_set_new(o, "base_sheets", bf);
+        json_object_set_new(o, "product_relation", json_boolean(pts->product_ok));
+    }
+    return o;
+}
+
+static void cycles_text(char *buf, size_t n, const int *perm, size_t len)
+{
+    size_t used = 0;
+    buf[0] = '\0';
+    char *seen = calloc(len ? len : 1, 1);
+    for (size_t i = 0; seen && i < len && used < n; i++) {
+        if (seen[i])
+            continue;
+        used += (size_t)snprintf(buf + used, n - used, "(");
+        for (size_t j = i; !seen[j] && used < n; j = (size_t)perm[j]) {
+            seen[j] = 1;
+            used += (size_t)snprintf(buf + used, n - used, "%s%zu", j == i ? "" : " ", j + 1);
+        }
+        if (used < n)
+            used += (size_t)snprintf(buf + used, n - used, ")");
+    }
+    free(seen);
+}
+
+static void point_row(FILE *fp, const char *where, const sw_point *pt, const sw_func *f)
+{
+    char a[64], b[64], cyc[512];
+    const char *kind = pt->kind == SW_POINT_BRANCH ? "branch point"
+                       : pt->kind == SW_POINT_POLE ? "pole" : "not branched";
+    if (sw_func_kind_of(f) == SW_FUNC_EXPR) {
+        const char *what = "";
+        if (pt->kind == SW_POINT_BRANCH) {
+            if (pt->is_multiplier)
+                snprintf(b, sizeof b, "multiplier %s", cfmt(a, sizeof a, pt->ratio)), what = b;
+            else if (pt->is_shift)
+                snprintf(b, sizeof b, "shift %s", cfmt(a, sizeof a, pt->difference)), what = b;
+            else
+                snprintf(b, sizeof b, "ratio %s (not a pure factor)",
+                         cfmt(a, sizeof a, pt->ratio)), what = b;
+        }
+        fprintf(fp, "  %-28s %-13s %s\n", where, kind, what);
+    } else {
+        cyc[0] = '\0';
+        if (pt->perm)
+            cycles_text(cyc, sizeof cyc, pt->perm, pt->n);
+        fprintf(fp, "  %-28s %-13s %s\n", where, kind, cyc);
+    }
+}
+
+void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f)
+{
+    char a[64];
+    fprintf(fp, "  %-28s %-13s %s\n", "point", "kind",
+            sw_func_kind_of(f) == SW_FUNC_EXPR ? "one counter-clockwise turn" : "cycles");
+    for (size_t k = 0; k < pts->n; k++)
+        point_row(fp, cfmt(a, sizeof a, pts->pt[k].z), &pts->pt[k], f);
+    if (pts->complete)
+        point_row(fp, "infinity", &pts->infinity, f);
+    else
+        fprintf(fp, "  %-28s %s\n", "infinity", "not determined");
+    if (!pts->complete)
+        fprintf(fp, "note: the list may be incomplete: %s.\n", pts->incomplete);
+}
