@@ -29,7 +29,7 @@ void sw_track_opts_init(sw_track_opts *o)
 {
     sw_step_opts_init(&o->step);
     o->min_step = 1e-13;  /* 2^-43 of the scale: far below any real step, far above rounding */
-    o->max_step = 0.125;  /* at least 8 steps per path scale so the midpoint test sees detail */
+    o->max_step = 0.25;   /* at least 4 steps per path scale, so the midpoint test sees detail */
     o->max_steps = 50000000;
     o->keep_log = 1;
 }

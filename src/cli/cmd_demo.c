@@ -38,8 +38,13 @@ static void momenta(double complex q[2], const sw_func *f, const sw_germ *g)
     q[1] = 0.5 * rs * rho[1];
 }
 
-static int show_path(const sw_func *f, const char *title, const char *spec, const char *story,
-                     int loop)
+typedef struct walk {
+    char label[8][4];      /* sheet label at each vertex (at most 8 reported) */
+    double complex ratio;  /* value of rho1 rho2 at the end over the start */
+} walk;
+
+static int show_path(walk *out, const sw_func *f, const char *title, const char *spec,
+                     const char *story, int loop)
 {
     sw_path p;
     sw_path_init(&p);
@@ -63,7 +68,7 @@ static int show_path(const sw_func *f, const char *title, const char *spec, cons
     }
     printf("\n%s\n", title);
     printf("   path: %s\n%s\n", spec, story);
-    printf("   %-18s %-28s %-28s %s\n", "s", "q1", "q2", "sheet (Im q1, Im q2)");
+    printf("   %-30s %-32s %-32s %s\n", "s", "q1", "q2", "sheet (Im q1, Im q2)");
     size_t nseg = sw_path_segments(&p);
     for (size_t k = 0; k <= nseg; k++) {
         /* vertices, and the middle of each segment of a polygon with few sides */
@@ -83,11 +88,19 @@ static int show_path(const sw_func *f, const char *title, const char *spec, cons
             char a[64], b[64], c[64], zb[80];
             snprintf(zb, sizeof zb, "%s%s", cfmt(a, sizeof a, sw_path_point(&p, t)),
                      half == 0 && p.bank[k] > 0 ? "+i0" : "");
-            printf("   %-18s %-28s %-28s (%c,%c)%s\n", zb, cfmt(b, sizeof b, q[0]),
-                   cfmt(c, sizeof c, q[1]), sign_of(q[0], h.z), sign_of(q[1], h.z),
-                   sign_of(q[0], h.z) == '+' && sign_of(q[1], h.z) == '+' ? "  physical" : "");
+            char l1 = sign_of(q[0], h.z), l2 = sign_of(q[1], h.z);
+            printf("   %-30s %-32s %-32s (%c,%c)%s\n", zb, cfmt(b, sizeof b, q[0]),
+                   cfmt(c, sizeof c, q[1]), l1, l2, l1 == '+' && l2 == '+' ? " physical" : "");
+            size_t slot = loop && k == nseg ? 7 : k;
+            if (half == 0 && slot < 8) {
+                out->label[slot][0] = l1;
+                out->label[slot][1] = ',';
+                out->label[slot][2] = l2;
+                out->label[slot][3] = '\0';
+            }
         }
     }
+    out->ratio = sw_func_value(f, &tr.vert[nseg]) / sw_func_value(f, &tr.vert[0]);
     printf("   (%zu steps, none refused by a branch point; uncertified double precision)\n",
            tr.steps);
 cleanup:
@@ -138,21 +151,31 @@ int cmd_demo(int argc, char **argv)
     printf("   Each threshold flips the sign of its factor (multiplier -1); s = 0, where\n"
            "   both operands have a pole, is not a branch point of the product, and\n"
            "   neither is infinity.\n");
-    rc = show_path(f, "2. From the physical region down through the cut above both thresholds,",
-                   "5+i0; 5-1i; 2.5-1i; 2.5+1i; 5+1i",
+    walk w1, w2;
+    memset(&w1, 0, sizeof w1);
+    memset(&w2, 0, sizeof w2);
+    printf("\n   On the real axis a label refers to the continued values pushed to s + i0.\n");
+    rc = show_path(&w1, f, "2. From the physical region down through the real axis above both "
+                   "thresholds,", "5+i0; 5-1i; 2.5-1i; 2.5+1i; 5+1i",
                    "   then left below the axis and up again between the thresholds.", 0);
     if (rc)
         goto cleanup;
-    printf("   Crossing the real axis above s = 4 leads from (+,+) straight to (-,-):\n"
-           "   the sheet reached from the physical region by going under the cut.\n"
-           "   Between the thresholds only q1 changes sign: the (-,+) sheet is next door.\n");
-    rc = show_path(f, "3. A loop around both thresholds (and not around s = 0):",
-                   "circle 2.5 2 16", "   counter-clockwise, starting at s = 4.5.", 1);
+    printf("   Crossing the axis at s = 5 (above both thresholds) led from (%s) to (%s).\n"
+           "   Crossing it at s = 2.5 (between them) led from (%s) to (%s): only the\n"
+           "   momentum whose threshold lies to the left of the crossing changed sides.\n",
+           w1.label[0], w1.label[1], w1.label[2], w1.label[3]);
+    rc = show_path(&w2, f, "3. A loop around both thresholds (and not around s = 0):",
+                   "circle 2.5 2 16", "   counter-clockwise, starting and ending at s = 4.5.", 1);
     if (rc)
         goto cleanup;
-    printf("   Both momenta change sign: the loop leads from (+,+) to (-,-), although the\n"
-           "   product rho1 rho2 returns to its starting value.  A formula that only\n"
-           "   looks at the product cannot tell the two sheets apart.\n\n"
+    {
+        char rb[64];
+        printf("   The loop starts on (%s) and ends on (%s), while the product rho1 rho2\n"
+               "   comes back multiplied by %s.  A formula that only looks at the\n"
+               "   product cannot tell these sheets apart; the momenta can.\n\n",
+               w2.label[0], w2.label[7], cfmt(rb, sizeof rb, w2.ratio));
+    }
+    printf(
            "Try it on your own functions:\n"
            "   sheetwalk points -f \"%s\"\n"
            "   sheetwalk trace  -f \"%s\" -p \"5+i0; 5-1i; 2.5-1i\"\n"

@@ -276,6 +276,13 @@ void cli_emit(json_t *doc)
 const char *cfmt(char *buf, size_t n, double complex z)
 {
     double re = creal(z), im = cimag(z);
+    /* tables show 12 digits: a component below 1e-14 of the modulus is
+       rounding noise at that precision (JSON keeps the raw values) */
+    double mod = cabs(z);
+    if (fabs(re) < 1e-14 * mod)
+        re = 0;
+    if (fabs(im) < 1e-14 * mod)
+        im = 0;
     if (im == 0)
         snprintf(buf, n, "%.12g", re + 0.0);
     else if (re == 0)
