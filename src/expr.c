@@ -833,3 +833,30 @@ sw_status sw_const_parse(double complex *value, int *bank, const char *text,
         *bank = b;
     return SW_OK;
 }
+
+double complex sw_expr_mv_operand(const sw_expr *e, size_t m, double complex z, double complex w)
+{
+    if (m >= e->nmv)
+        return CMPLX(NAN, NAN);
+    int target = e->node[e->mv_node[m]].a;
+    double complex stackbuf[256];
+    double complex *vals = e->n <= 256 ? stackbuf : malloc(e->n * sizeof *vals);
+    if (vals == NULL)
+        return CMPLX(NAN, NAN);
+    for (size_t j = 0; j <= (size_t)target; j++) {
+        const sw_node *nd = &e->node[j];
+        size_t k = j; /* the name EVAL_SINGLE writes to */
+        switch (nd->kind) {
+            EVAL_SINGLE(nd, vals);
+        case N_POW:
+            vals[k] = nd->fn == 1 ? csqrt(vals[nd->a]) : cpow(vals[nd->a], nd->c);
+            break;
+        case N_POWG: vals[k] = cpow(vals[nd->a], vals[nd->b]); break;
+        case N_LOG: vals[k] = clog(vals[nd->a]); break;
+        }
+    }
+    double complex r = vals[target];
+    if (vals != stackbuf)
+        free(vals);
+    return r;
+}

@@ -56,6 +56,10 @@ int sw_expr_principal_state(double complex *value, double complex *state, const 
 int sw_expr_shifted_state(double complex *value, double complex *state, const sw_expr *e,
                           double complex z, double complex w, const long *shift,
                           double complex *vals);
+/* The operand of multivalued node K at z, with inner nodes on their principal
+ * branches (the modulus is branch independent, which is what callers use:
+ * zero, finite, or not). */
+double complex sw_expr_mv_operand(const sw_expr *e, size_t k, double complex z, double complex w);
 /* Value from a given state at z (no ratio test, state not updated). */
 double complex sw_expr_eval_state(const sw_expr *e, double complex z, double complex w,
                                   const double complex *state, double complex *vals);

@@ -15,6 +15,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "expr_internal.h"
 #include "func_internal.h"
 #include "sheetwalk/track.h"
 
@@ -30,7 +31,7 @@ void sw_track_opts_init(sw_track_opts *o)
     sw_step_opts_init(&o->step);
     o->min_step = 1e-13;  /* 2^-43 of the scale: far below any real step, far above rounding */
     o->max_step = 0.25;   /* at least 4 steps per path scale, so the midpoint test sees detail */
-    o->max_steps = 50000000;
+    o->max_steps = 10000000; /* about 10 s of work: beyond it, a path is refused, not run */
     o->keep_log = 1;
 }
 
@@ -118,12 +119,25 @@ static sw_status singular_error(sw_error *err, const sw_func *f, int why, double
 {
     char what[160];
     sw_func_describe(what, sizeof what, f, why);
-    if (sw_func_kind_of(f) == SW_FUNC_EXPR)
+    const sw_expr *e = sw_func_expr(f);
+    if (e != NULL && why < 0)
+        return sw_error_set(err, SW_ESINGULAR,
+                            "the value of the function is not finite near z = %.10g%+.10gi "
+                            "(segment %zu): a pole of the expression, or beyond double range",
+                            creal(z), cimag(z), seg + 1);
+    if (e != NULL) {
+        double complex u = sw_expr_mv_operand(e, (size_t)why, z, 0);
+        if (!isfinite(creal(u)) || !isfinite(cimag(u)) || cabs(u) > 1e300)
+            return sw_error_set(err, SW_ESINGULAR,
+                                "the operand of '%s' is infinite or beyond double range near z = "
+                                "%.10g%+.10gi (segment %zu): a pole of the operand, or overflow",
+                                what, creal(z), cimag(z), seg + 1);
         return sw_error_set(err, SW_ESINGULAR,
                             "the path %s a zero or pole of the operand of '%s' at z = "
                             "%.10g%+.10gi (segment %zu): a branch point lies on the path",
                             grazing ? "grazes" : "runs through", what, creal(z), cimag(z),
                             seg + 1);
+    }
     return sw_error_set(err, SW_ESINGULAR,
                         "the path %s a branch point or pole of the curve near z = "
                         "%.10g%+.10gi (segment %zu): sheets collide there", grazing ? "grazes" :

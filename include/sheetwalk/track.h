@@ -23,7 +23,7 @@ typedef struct sw_track_opts {
     sw_step_opts step;   /* engine acceptance (see func.h) */
     double min_step;     /* refusal floor, relative to the path scale (default 1e-11) */
     double max_step;     /* longest step, relative to the path scale (default 0.25) */
-    size_t max_steps;    /* give up after this many accepted steps (default 5e7) */
+    size_t max_steps;    /* give up after this many accepted steps (default 1e7) */
     int keep_log;        /* keep the dense log of germs (default 1) */
 } sw_track_opts;
 
