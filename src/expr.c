@@ -684,6 +684,9 @@ double complex sw_expr_eval_principal(const sw_expr *e, double complex z, double
         const sw_node *nd = &e->node[k];
         switch (nd->kind) {
             EVAL_SINGLE(nd, vals);
+        /* exactly as C computes it, signed zeros included: csqrt(-4 - 0i) = -2i
+           (C11 Annex G); sw_expr_shifted_state is the place that treats a zero
+           imaginary part as +0 */
         case N_POW:
             vals[k] = nd->fn == 1 ? csqrt(vals[nd->a]) : cpow(vals[nd->a], nd->c);
             break;
@@ -730,7 +733,14 @@ int sw_expr_eval_step(double complex *value, double complex *new_state, const sw
             double complex r = u / old_state[2 * m];
             if (rho >= 0 && cabs(r - 1.0) > rho)
                 return m;
-            double complex L = old_state[2 * m + 1] + clog(r);
+            /* the continued argument decides only the branch integer k; the
+               value is recomputed as Log u + 2 pi i k, so rounding errors do not
+               accumulate along the path */
+            double im = cimag(old_state[2 * m + 1]) + carg(r);
+            double complex L = clog(u);
+            double k2 = nearbyint((im - cimag(L)) / (2 * PI));
+            if (k2 != 0)
+                L += CMPLX(0.0, 2 * PI * k2);
             new_state[2 * m] = u;
             new_state[2 * m + 1] = L;
             vals[k] = mv_value(nd, L, vals);
@@ -755,6 +765,8 @@ int sw_expr_shifted_state(double complex *value, double complex *state, const sw
             double complex u = vals[nd->a];
             if (u == 0 || !finite_c(u))
                 return -2 - m;
+            if (cimag(u) == 0)
+                u = CMPLX(creal(u), 0.0); /* +0: the principal Arg is pi on the cut */
             double complex L = clog(u);
             if (shift != NULL && shift[m] != 0)
                 L += CMPLX(0.0, 2 * PI * (double)shift[m]);
@@ -828,7 +840,7 @@ sw_status sw_const_parse(double complex *value, int *bank, const char *text,
     sw_expr_free(e);
     if (!finite_c(v))
         return sw_error_set(err, SW_EINPUT, "'%.80s' is not a finite number", text);
-    *value = v;
+    *value = CMPLX(creal(v) + 0.0, cimag(v) + 0.0); /* no negative zeros in constants */
     if (bank)
         *bank = b;
     return SW_OK;

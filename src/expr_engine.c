@@ -416,7 +416,10 @@ size_t sw_func_node_branches(long *out, size_t max, const sw_func *f, const sw_g
     if (e == NULL)
         return 0;
     size_t n = 0;
-    for (size_t m = 0; m < e->nmv && n < max; m++)
-        out[n++] = lround((cimag(g->s[2 * m + 1]) - carg(g->s[2 * m])) / (2 * PI));
+    for (size_t m = 0; m < e->nmv && n < max; m++) {
+        double complex u = g->s[2 * m];
+        double arg = cimag(u) == 0 ? (creal(u) < 0 ? PI : 0.0) : carg(u); /* Arg in (-pi, pi] */
+        out[n++] = lround((cimag(g->s[2 * m + 1]) - arg) / (2 * PI));
+    }
     return n;
 }

@@ -351,6 +351,11 @@ sw_status sw_track_start_germ(sw_germ *g, const sw_func *f, const sw_path *path,
     return st;
 }
 
+double complex sw_path_followed_vertex(const sw_path *path, size_t k)
+{
+    return displaced(path, k, sw_path_scale(path));
+}
+
 double sw_path_winding(const sw_path *path, double complex c)
 {
     double scale = sw_path_scale(path), turns = 0;

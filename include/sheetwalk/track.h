@@ -66,6 +66,11 @@ sw_status sw_track_start_germ(sw_germ *g, const sw_func *f, const sw_path *path,
                               size_t vertex, const double complex *w,
                               const sw_track_opts *o, sw_error *err);
 
+/* The point the tracker actually follows for vertex K: the vertex itself, or
+ * for a bank-marked vertex the vertex displaced by 1e-10 of the path's scale
+ * to the marked side (so that a path along x+i0 passes the axis above). */
+double complex sw_path_followed_vertex(const sw_path *path, size_t k);
+
 /* Net number of counter-clockwise turns of the finite part of PATH around C
  * (a real number; an integer for closed paths).  Exact for polylines. */
 double sw_path_winding(const sw_path *path, double complex c);

@@ -7,6 +7,7 @@
 #include <stdio.h>
 
 #include "sheetwalk/sheetwalk.h"
+#include "sheetwalk/cuts.h"
 
 /* Which shared options a command accepts. */
 enum {
@@ -65,6 +66,21 @@ int cli_load(cli *c, int need_path, sw_error *err);
 /* The start germ from --start / --at (or the default). */
 int cli_start_germ(cli *c, sw_germ *g, const sw_track_opts *o, sw_error *err);
 
+/* The cut system from --cut (each a file or inline polyline), or the default
+ * system built from PTS when none is given. */
+int cli_load_cuts(cli *c, sw_cuts *cuts, const sw_points *pts, sw_error *err);
+/* Parse "P=W" (P may carry a bank mark). */
+int cli_point_value(cli *c, const char *opt, const char *text, double complex *p, int *bank,
+                    double complex *w, sw_error *err);
+/* The default fixing point: above all branch points, off the cuts. */
+double complex cli_default_anchor(const sw_points *pts, const sw_cuts *cuts);
+/* Regular branch from --fix, or the default (principal / sheet 1 at the
+ * default anchor). */
+int cli_regular_branch(cli *c, sw_branch **b, const sw_cuts *cuts, const sw_points *pts,
+                       sw_error *err);
+json_t *cli_cuts_json(const sw_cuts *cuts);
+json_t *cli_perm_json(const int *perm, size_t n);
+
 /* JSON helpers. */
 json_t *json_cplx(double complex z);
 json_t *cli_doc(const cli *c);          /* {"command": ..., "format": 1, "function": {...}} */
@@ -81,5 +97,7 @@ int cmd_points(int argc, char **argv);
 int cmd_trace(int argc, char **argv);
 int cmd_loop(int argc, char **argv);
 int cmd_sheets(int argc, char **argv);
+int cmd_cuts(int argc, char **argv);
+int cmd_which(int argc, char **argv);
 
 #endif

@@ -22,6 +22,9 @@ static const char trace_help[] =
     "      --at Z=W          start on the sheet nearest W at the vertex Z\n"
     "      --set NAME=VALUE  give a parameter a value (repeatable)\n"
     "      --certify         prove every step in ball arithmetic\n"
+    "      --cut PATH        a cut (repeatable): report every crossing of a cut piece,\n"
+    "                        its direction, and the sheet relative to the regular\n"
+    "                        branch that agrees with the start\n"
     "      --json            one JSON document on stdout\n";
 
 static const char loop_help[] =
@@ -39,7 +42,12 @@ static const char loop_help[] =
     "      --at Z=W          fix the sheet nearest W at the vertex Z\n"
     "      --set NAME=VALUE  give a parameter a value (repeatable)\n"
     "      --certify         prove every step in ball arithmetic\n"
-    "      --json            one JSON document on stdout\n";
+    "      --cut PATH        a cut (repeatable): report the crossings, as for trace\n"
+    "      --json            one JSON document on stdout\n\n"
+    "The loop is also written as a word in the generators g1, g2, ... of the default\n"
+    "cut system (one ray per branch point, see 'sheetwalk cuts --help'): gk is a\n"
+    "counter-clockwise crossing of the ray of the k-th branch point, gk^-1 the\n"
+    "opposite.\n";
 
 static json_t *zw(double complex z, double complex w, int bank)
 {
@@ -120,7 +128,7 @@ static int run_track(run *r, int argc, char **argv, const char *help, int need_c
     sw_track_opts o;
     sw_track_opts_init(&o);
     o.step.certify = r->c.certify;
-    o.keep_log = 0;
+    o.keep_log = r->c.ncuts > 0; /* crossings look up the germ after each one */
     if ((rc = cli_start_germ(&r->c, &r->start, &o, &err)) >= 0)
         return rc;
     if (sw_track_run(&r->tr, r->c.f, &r->start, &r->c.p, &o, &err) != SW_OK)
@@ -174,6 +182,149 @@ static json_t *winding(const run *r, int print)
         }
     }
     return a;
+}
+
+/* Crossings of the given cuts, with the sheet after each relative to the
+ * regular branch that agrees with the start of the path. */
+static json_t *crossings(const run *r, int print)
+{
+    json_t *a = json_array();
+    const cli *c = &r->c;
+    if (c->ncuts == 0)
+        return a;
+    sw_error err;
+    sw_cuts cuts;
+    sw_cuts_init(&cuts);
+    sw_branch *b = NULL;
+    sw_crossing *x = NULL;
+    size_t nx = 0;
+    sw_germ gt, gr;
+    sw_germ_init(&gt, c->f);
+    sw_germ_init(&gr, c->f);
+    cli tmp = *c; /* cli_load_cuts only reads c */
+    if (cli_load_cuts(&tmp, &cuts, &r->pts, &err) >= 0)
+        goto cleanup;
+    if (sw_cuts_crossings(&x, &nx, &cuts, &c->p, &err) != SW_OK)
+        goto cleanup;
+    int have_b = sw_branch_from_germ(&b, c->f, &cuts, &r->start, &err) == SW_OK;
+    if (print) {
+        printf("\ncrossings of the cuts%s:\n", have_b ? " (sheet relative to the regular branch "
+                                                     "through the start)" : "");
+        if (nx == 0)
+            printf("  none\n");
+        else
+            printf("  %-10s %-28s %-5s %-7s %-14s %s\n", "t", "z", "cut", "piece", "direction",
+                   "after it");
+    }
+    int curve = sw_func_kind_of(c->f) == SW_FUNC_CURVE;
+    for (size_t k = 0; k < nx; k++) {
+        const sw_cut_piece *pc = &cuts.piece[x[k].piece];
+        json_t *o = json_object();
+        json_object_set_new(o, "t", json_real(x[k].t));
+        json_object_set_new(o, "z", json_cplx(x[k].z));
+        json_object_set_new(o, "cut", json_integer((json_int_t)pc->cut + 1));
+        json_object_set_new(o, "piece", json_integer((json_int_t)pc->seg + 1));
+        json_object_set_new(o, "direction", json_string(x[k].direction > 0 ? "right-to-left"
+                                                                           : "left-to-right"));
+        char after[96] = "";
+        if (have_b) {
+            /* a point just after the crossing, before anything else happens */
+            double tn = k + 1 < nx ? x[k + 1].t : (double)sw_path_segments(&c->p);
+            double ta = x[k].t + fmin(1e-6, 0.5 * (tn - x[k].t));
+            if (sw_trace_germ_at(&gt, &r->tr, c->f, ta, &c->p, &err) == SW_OK &&
+                sw_branch_eval(&gr, b, gt.z, SW_BANK_NONE, &err) == SW_OK) {
+                double complex vt = sw_func_value(c->f, &gt);
+                if (curve) {
+                    double complex fib[64];
+                    size_t n = sw_func_sheet_values(fib, 64, c->f, &gr);
+                    size_t best = 0;
+                    for (size_t i = 1; i < n; i++)
+                        if (cabs(fib[i] - vt) < cabs(fib[best] - vt))
+                            best = i;
+                    /* regular sheets are named by the start fiber's labels */
+                    json_object_set_new(o, "regular_sheet", json_integer((json_int_t)best + 1));
+                    snprintf(after, sizeof after, "regular sheet %zu", best + 1);
+                } else {
+                    double complex q = vt / sw_func_value(c->f, &gr);
+                    char qb[64];
+                    json_object_set_new(o, "relative", json_cplx(q));
+                    snprintf(after, sizeof after, "%s x regular", cfmt(qb, sizeof qb, q));
+                }
+            }
+        }
+        json_array_append_new(a, o);
+        if (print) {
+            char zb[64];
+            printf("  %-10.6f %-28s %-5zu %-7zu %-14s %s\n", x[k].t, cfmt(zb, sizeof zb, x[k].z),
+                   pc->cut + 1, pc->seg + 1, x[k].direction > 0 ? "right-to-left" :
+                   "left-to-right", after);
+        }
+    }
+cleanup:
+    free(x);
+    sw_branch_free(b);
+    sw_cuts_clear(&cuts);
+    sw_germ_clear(&gt);
+    sw_germ_clear(&gr);
+    return a;
+}
+
+/* The loop as a word in the generators of the default cut system. */
+static json_t *word(const run *r, int print)
+{
+    json_t *o = json_object();
+    sw_cuts cuts;
+    sw_cuts_init(&cuts);
+    sw_error err;
+    sw_crossing *x = NULL;
+    size_t nx = 0;
+    if (!r->have_pts || sw_cuts_default(&cuts, &r->pts, &err) != SW_OK ||
+        sw_cuts_crossings(&x, &nx, &cuts, &r->c.p, &err) != SW_OK) {
+        json_object_set_new(o, "word", json_null());
+        goto cleanup;
+    }
+    /* generator k <-> the k-th branch point (in the order of 'points') */
+    size_t *gen_of = calloc(r->pts.n ? r->pts.n : 1, sizeof *gen_of);
+    json_t *gens = json_array();
+    size_t g = 0;
+    for (size_t k = 0; gen_of && k < r->pts.n; k++)
+        if (r->pts.pt[k].kind == SW_POINT_BRANCH)
+            gen_of[k] = ++g;
+    for (size_t k = 0; k < cuts.n; k++) {
+        json_t *e = json_object();
+        char name[32];
+        snprintf(name, sizeof name, "g%zu", gen_of ? gen_of[cuts.branch_of[k]] : k + 1);
+        json_object_set_new(e, "name", json_string(name));
+        json_object_set_new(e, "z", json_cplx(cuts.piece[k].from));
+        json_object_set_new(e, "ray_direction", json_cplx(cuts.piece[k].dir));
+        json_array_append_new(gens, e);
+    }
+    char w[1024] = "";
+    size_t used = 0;
+    for (size_t k = 0; k < nx && used < sizeof w - 32; k++) {
+        size_t cut = cuts.piece[x[k].piece].cut;
+        size_t gi = gen_of ? gen_of[cuts.branch_of[cut]] : cut + 1;
+        used += (size_t)snprintf(w + used, sizeof w - used, "%sg%zu%s", used ? " " : "", gi,
+                                 x[k].direction > 0 ? "" : "^-1");
+    }
+    free(gen_of);
+    json_object_set_new(o, "word", json_string(nx ? w : "1"));
+    json_object_set_new(o, "generators", gens);
+    if (print) {
+        printf("\nas a word in the generators of the default cut system: %s\n", nx ? w : "1 "
+               "(crosses no default cut)");
+        for (size_t k = 0; k < cuts.n; k++) {
+            char zb[64], db[64];
+            printf("  %s: a counter-clockwise turn around %s (ray towards %s)\n",
+                   json_string_value(json_object_get(json_array_get(gens, k), "name")),
+                   cfmt(zb, sizeof zb, cuts.piece[k].from),
+                   cfmt(db, sizeof db, cuts.piece[k].dir));
+        }
+    }
+cleanup:
+    free(x);
+    sw_cuts_clear(&cuts);
+    return o;
 }
 
 static void certification_line(const run *r)
@@ -231,7 +382,7 @@ static int finish(const run *r)
 int cmd_trace(int argc, char **argv)
 {
     run r;
-    cli_init(&r.c, "trace", OPT_FUNC | OPT_PATH | OPT_START | OPT_CERTIFY | OPT_JSON);
+    cli_init(&r.c, "trace", OPT_FUNC | OPT_PATH | OPT_START | OPT_CERTIFY | OPT_JSON | OPT_CUT);
     int rc = run_track(&r, argc, argv, trace_help, 0);
     if (rc < 0) {
         const sw_path *p = &r.c.p;
@@ -257,7 +408,12 @@ int cmd_trace(int argc, char **argv)
             }
         }
         json_t *wd = winding(&r, !r.c.json);
+        json_t *cx = crossings(&r, !r.c.json);
         if (r.c.json) {
+            if (r.c.ncuts)
+                json_object_set_new(d, "crossings", cx);
+            else
+                json_decref(cx);
             json_object_set_new(d, "vertices", verts);
             json_object_set_new(d, "winding", wd);
             json_object_set_new(d, "winding_complete", json_boolean(r.have_pts &&
@@ -267,6 +423,7 @@ int cmd_trace(int argc, char **argv)
         } else {
             json_decref(verts);
             json_decref(wd);
+            json_decref(cx);
             if (!r.have_pts)
                 printf("\n(turns not reported: %s)\n", r.pts_err.msg);
             else if (!r.pts.complete)
@@ -283,7 +440,7 @@ int cmd_trace(int argc, char **argv)
 int cmd_loop(int argc, char **argv)
 {
     run r;
-    cli_init(&r.c, "loop", OPT_FUNC | OPT_PATH | OPT_START | OPT_CERTIFY | OPT_JSON);
+    cli_init(&r.c, "loop", OPT_FUNC | OPT_PATH | OPT_START | OPT_CERTIFY | OPT_JSON | OPT_CUT);
     int rc = run_track(&r, argc, argv, loop_help, 1);
     if (rc < 0) {
         const sw_func *f = r.c.f;
@@ -372,12 +529,22 @@ int cmd_loop(int argc, char **argv)
             rc = perm_rc;
         } else {
             json_t *wd = winding(&r, !r.c.json);
+            json_t *cx = crossings(&r, !r.c.json);
+            json_t *wo = word(&r, !r.c.json);
             if (r.c.json) {
+                if (r.c.ncuts)
+                    json_object_set_new(d, "crossings", cx);
+                else
+                    json_decref(cx);
+                json_object_update(d, wo);
+                json_decref(wo);
                 json_object_set_new(d, "winding", wd);
                 json_object_set_new(d, "certified", json_boolean(r.c.certify && r.tr.certified));
                 cli_emit(d);
             } else {
                 json_decref(wd);
+                json_decref(cx);
+                json_decref(wo);
                 certification_line(&r);
             }
             rc = finish(&r);

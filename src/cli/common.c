@@ -431,3 +431,112 @@ void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f)
     if (!pts->complete)
         fprintf(fp, "note: the list may be incomplete: %s.\n", pts->incomplete);
 }
+
+/* ------------------------------------------------------------ cuts */
+
+int cli_load_cuts(cli *c, sw_cuts *cuts, const sw_points *pts, sw_error *err)
+{
+    if (c->ncuts == 0) {
+        if (sw_cuts_default(cuts, pts, err) != SW_OK)
+            return cli_fail(c, err);
+        return -1;
+    }
+    for (size_t k = 0; k < c->ncuts; k++) {
+        sw_path p;
+        sw_path_init(&p);
+        sw_status st = sw_path_load(&p, c->cuts[k], &c->params, err);
+        if (st == SW_OK)
+            st = sw_cuts_add(cuts, &p, err);
+        sw_path_clear(&p);
+        if (st != SW_OK) {
+            sw_error_prefix(err, "--cut %.100s", c->cuts[k]);
+            return cli_fail(c, err);
+        }
+    }
+    return -1;
+}
+
+int cli_point_value(cli *c, const char *opt, const char *text, double complex *p, int *bank,
+                    double complex *w, sw_error *err)
+{
+    const char *eq = strchr(text, '=');
+    if (eq == NULL)
+        return cli_usage(c, "%s needs P=W, got '%s'", opt, text);
+    char pt[256];
+    size_t n = (size_t)(eq - text);
+    if (n >= sizeof pt)
+        return cli_usage(c, "%s: point too long", opt);
+    memcpy(pt, text, n);
+    pt[n] = '\0';
+    if (sw_const_parse(p, bank, pt, &c->params, err) != SW_OK ||
+        sw_const_parse(w, NULL, eq + 1, &c->params, err) != SW_OK) {
+        sw_error_prefix(err, "%s %s", opt, text);
+        return cli_fail(c, err);
+    }
+    return -1;
+}
+
+double complex cli_default_anchor(const sw_points *pts, const sw_cuts *cuts)
+{
+    double complex centre = 0;
+    size_t n = 0;
+    for (size_t k = 0; k < pts->n; k++) {
+        centre += pts->pt[k].z;
+        n++;
+    }
+    if (n)
+        centre /= (double)n;
+    double R = 0;
+    for (size_t k = 0; k < pts->n; k++)
+        R = fmax(R, cabs(pts->pt[k].z - centre));
+    double complex z = centre + CMPLX(0.0, R + 1);
+    /* nudge off a cut that happens to pass there */
+    for (int k = 0; k < 16 && sw_cuts_distance(cuts, z) < 1e-6 * (R + 1); k++)
+        z += 0.1 * (R + 1) * cexp(CMPLX(0.0, 0.7 * k));
+    return z;
+}
+
+int cli_regular_branch(cli *c, sw_branch **b, const sw_cuts *cuts, const sw_points *pts,
+                       sw_error *err)
+{
+    double complex p, w;
+    int bank = SW_BANK_NONE, rc;
+    sw_status st;
+    if (c->fix) {
+        if ((rc = cli_point_value(c, "--fix", c->fix, &p, &bank, &w, err)) >= 0)
+            return rc;
+        st = sw_branch_new(b, c->f, cuts, p, bank, &w, err);
+    } else {
+        p = cli_default_anchor(pts, cuts);
+        st = sw_branch_new(b, c->f, cuts, p, SW_BANK_NONE, NULL, err);
+    }
+    if (st != SW_OK) {
+        sw_error_prefix(err, "fixing the regular branch");
+        return cli_fail(c, err);
+    }
+    return -1;
+}
+
+json_t *cli_cuts_json(const sw_cuts *cuts)
+{
+    json_t *a = json_array();
+    for (size_t k = 0; k < cuts->n; k++) {
+        json_t *v = json_array();
+        const sw_path *p = &cuts->cut[k];
+        size_t nv = p->n;
+        for (size_t j = 0; j < nv; j++)
+            json_array_append_new(v, json_cplx(p->z[j]));
+        if (p->inf_end)
+            json_array_append_new(v, json_string("inf"));
+        json_array_append_new(a, v);
+    }
+    return a;
+}
+
+json_t *cli_perm_json(const int *perm, size_t n)
+{
+    json_t *a = json_array();
+    for (size_t i = 0; i < n; i++)
+        json_array_append_new(a, json_integer(perm[i] + 1));
+    return a;
+}

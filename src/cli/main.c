@@ -15,10 +15,12 @@ static const command commands[] = {
     {"points", cmd_points, "branch points, their local monodromy, and infinity"},
     {"trace", cmd_trace, "continue a function along a path: values, branches, winding"},
     {"loop", cmd_loop, "what a closed path does to the function (multiplier, permutation)"},
+    {"cuts", cmd_cuts, "check a cut system: single-valued? jumps across every piece; --eval"},
+    {"which", cmd_which, "which sheet a value at a point is on, seen from a base point"},
     {NULL, NULL, NULL}};
 
 /* Commands of the contract that later versions add. */
-static const char *const planned[] = {"sheets", "cuts", "which", "integrate", "audit", "plot",
+static const char *const planned[] = {"sheets", "integrate", "audit", "plot",
                                       "batch", NULL};
 
 static void usage(FILE *fp)
