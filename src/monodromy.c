@@ -337,9 +337,22 @@ static int add_roots(cand_list *c, const cpoly *p)
             acb_init(vr);
             acb_init(vi);
             for (slong j = 0; j < d && ok; j++) {
-                /* real polynomial: a root ball touching the axis is real */
+                /* real polynomial: a root ball touching the axis is real; a ball
+                   containing 0 in a coordinate gets the midpoint 0 there (still
+                   inside the enclosure), so that exact roots print exactly */
                 if (arb_contains_zero(acb_imagref(roots + j)))
                     arb_zero(acb_imagref(roots + j));
+                if (arb_contains_zero(acb_realref(roots + j)))
+                    arf_zero(arb_midref(acb_realref(roots + j)));
+                if (d == 1) { /* a linear factor: the root -c0/c1 exactly */
+                    fmpq_t r0;
+                    fmpq_init(r0);
+                    fmpq_set_fmpz_frac(r0, fac->p[f].coeffs, fac->p[f].coeffs + 1);
+                    fmpq_neg(r0, r0);
+                    arb_set_fmpq(acb_realref(roots + j), r0, prec);
+                    arb_zero(acb_imagref(roots + j));
+                    fmpq_clear(r0);
+                }
                 acb_poly_evaluate(vr, pr, roots + j, prec);
                 acb_poly_evaluate(vi, pi, roots + j, prec);
                 acb_mul_onei(vi, vi);

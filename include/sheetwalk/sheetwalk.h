@@ -8,4 +8,5 @@
 #include "sheetwalk/func.h"
 #include "sheetwalk/track.h"
 #include "sheetwalk/monodromy.h"
+#include "sheetwalk/cuts.h"
 #endif
