@@ -480,6 +480,71 @@ static int cmp_point(const void *a, const void *b)
     return 0;
 }
 
+/* |f| ~ |c| r^q on the ray arg z = 0.3 beyond every candidate: the slope of
+ * log|f| against log r between radii R 2^k and R 2^(k+1). */
+static void leading_exponent(sw_points *res, const sw_func *f, double R)
+{
+    sw_germ g, h;
+    if (sw_germ_init(&g, f) != SW_OK)
+        return;
+    if (sw_germ_init(&h, f) != SW_OK) {
+        sw_germ_clear(&g);
+        return;
+    }
+    double complex dir = cexp(CMPLX(0.0, 0.3));
+    sw_step_opts so;
+    sw_step_opts_init(&so);
+    double q[40];
+    int n = 0;
+    double complex z = R * dir;
+    if (sw_func_germ_at(&g, f, z, SW_BANK_NONE, NULL, NULL) == SW_OK) {
+        double lf = log(cabs(sw_func_value(f, &g)));
+        for (int k = 1; k < 40 && isfinite(lf); k++) {
+            double complex z1 = z * 2.0;
+            /* walk out along the ray in steps the engine accepts */
+            double complex at = z;
+            int ok = 1;
+            while (at != z1 && ok) {
+                double complex to = z1;
+                sw_step_result r;
+                int tries = 0;
+                while ((r = sw_func_advance(&h, &g, to, f, &so, NULL)) == SW_STEP_TOO_FAR &&
+                       tries++ < 60)
+                    to = 0.5 * (at + to);
+                if (r != SW_STEP_OK) {
+                    ok = 0;
+                    break;
+                }
+                sw_germ_copy(&g, &h);
+                at = to;
+            }
+            if (!ok)
+                break;
+            double l1 = log(cabs(sw_func_value(f, &g)));
+            q[n++] = (l1 - lf) / log(2.0);
+            lf = l1;
+            z = z1;
+            if (n >= 3 && fabs(q[n - 1] - q[n - 2]) < 1e-7 && fabs(q[n - 2] - q[n - 3]) < 1e-7) {
+                res->inf_exponent = q[n - 1];
+                res->inf_exponent_ok = 1;
+                /* snap to a nearby rational with a small denominator */
+                for (int den = 1; den <= 24; den++) {
+                    double num = nearbyint(q[n - 1] * den);
+                    if (fabs(num / den - q[n - 1]) < 1e-6) {
+                        res->inf_exponent = num / den;
+                        break;
+                    }
+                }
+                break;
+            }
+            if (cabs(z) > 1e30)
+                break;
+        }
+    }
+    sw_germ_clear(&g);
+    sw_germ_clear(&h);
+}
+
 sw_status sw_expr_points(sw_points *out, const sw_func *f, const sw_points_opts *o,
                          sw_error *err); /* called through the engine vtable */
 
@@ -560,6 +625,8 @@ sw_status sw_expr_points(sw_points *out, const sw_func *f, const sw_points_opts 
             goto cleanup;
         }
     }
+    if (res.complete)
+        leading_exponent(&res, f, 2 * R + 1);
     sw_points_clear(out);
     *out = res;
     sw_points_init(&res);

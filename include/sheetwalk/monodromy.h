@@ -56,6 +56,11 @@ typedef struct sw_points {
     double complex base;
     double complex *base_fiber;
     int product_ok;           /* curves: product relation verified (1), failed (0) */
+    /* expressions: f ~ c z^q at infinity; q estimated from |f| on a ray at
+       radii growing by factors of 2 (numerical; inf_exponent_ok when three
+       successive estimates agree to 1e-7) */
+    double inf_exponent;
+    int inf_exponent_ok;
 } sw_points;
 
 typedef struct sw_points_opts {

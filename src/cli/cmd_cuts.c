@@ -136,6 +136,10 @@ int cmd_cuts(int argc, char **argv)
             json_object_set_new(inf, "branched", rep.inf_branched < 0 ? json_null()
                                                  : json_boolean(rep.inf_branched));
             json_object_set_new(inf, "reached_by_cut", json_boolean(rep.inf_reached));
+            if (!curve && pts.complete)
+                json_object_set_new(inf, "leading_exponent",
+                                    pts.inf_exponent_ok ? json_real(pts.inf_exponent)
+                                                        : json_null());
             json_object_set_new(d, "infinity", inf);
             json_t *fx = json_object();
             json_object_set_new(fx, "z", json_cplx(a->z));
@@ -171,6 +175,9 @@ int cmd_cuts(int argc, char **argv)
             }
             printf("regular branch: fixed at z = %s where w = %s%s\n", cfmt(b1, sizeof b1, a->z),
                    cfmt(b2, sizeof b2, aw), c.fix ? "" : " (default: principal / sheet 1)");
+            if (!curve && pts.complete && pts.inf_exponent_ok)
+                printf("at infinity: |f| ~ |z|^%.6g (numerical estimate); %s\n",
+                       pts.inf_exponent, rep.inf_branched == 1 ? "branched" : "not branched");
             printf("\nverdict: %s\n", rep.single_valued
                                           ? "single-valued on the plane minus the cuts"
                                           : "NOT shown single-valued on the plane minus the cuts");

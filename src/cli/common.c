@@ -358,6 +358,10 @@ json_t *cli_points_json(const sw_points *pts, const sw_func *f)
     json_object_set_new(inf, "branched", pts->complete ? json_boolean(pts->infinity.kind ==
                                                                       SW_POINT_BRANCH)
                                                        : json_null());
+    if (sw_func_kind_of(f) == SW_FUNC_EXPR && pts->complete)
+        json_object_set_new(inf, "leading_exponent", pts->inf_exponent_ok
+                                                         ? json_real(pts->inf_exponent)
+                                                         : json_null());
     json_object_set_new(o, "infinity", inf);
     json_object_set_new(o, "complete", json_boolean(pts->complete));
     if (!pts->complete)
@@ -428,6 +432,9 @@ void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f)
         point_row(fp, "infinity", &pts->infinity, f);
     else
         fprintf(fp, "  %-28s %s\n", "infinity", "not determined");
+    if (pts->complete && sw_func_kind_of(f) == SW_FUNC_EXPR && pts->inf_exponent_ok)
+        fprintf(fp, "  (at infinity |f| grows like |z|^%.6g: numerical estimate)\n",
+                pts->inf_exponent);
     if (!pts->complete)
         fprintf(fp, "note: the list may be incomplete: %s.\n", pts->incomplete);
 }
