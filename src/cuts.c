@@ -959,8 +959,10 @@ sw_status sw_cuts_crossings(sw_crossing **out, size_t *nout, const sw_cuts *c, c
     double far = 8 * scale + 1;
     size_t n = 0, alloc = 0;
     sw_crossing *x = NULL;
+    double pscale = sw_path_scale(p);
     for (size_t k = 0; k + 1 < p->n; k++) {
-        double complex a = sw_path_followed_vertex(p, k), b = sw_path_followed_vertex(p, k + 1);
+        double complex a = sw_path_followed_vertex(p, k, pscale),
+                       b = sw_path_followed_vertex(p, k + 1, pscale);
         if (a == b)
             continue;
         for (size_t j = 0; j < c->npieces; j++) {

@@ -351,9 +351,9 @@ sw_status sw_track_start_germ(sw_germ *g, const sw_func *f, const sw_path *path,
     return st;
 }
 
-double complex sw_path_followed_vertex(const sw_path *path, size_t k)
+double complex sw_path_followed_vertex(const sw_path *path, size_t k, double scale)
 {
-    return displaced(path, k, sw_path_scale(path));
+    return displaced(path, k, scale);
 }
 
 double sw_path_winding(const sw_path *path, double complex c)

@@ -68,8 +68,9 @@ sw_status sw_track_start_germ(sw_germ *g, const sw_func *f, const sw_path *path,
 
 /* The point the tracker actually follows for vertex K: the vertex itself, or
  * for a bank-marked vertex the vertex displaced by 1e-10 of the path's scale
- * to the marked side (so that a path along x+i0 passes the axis above). */
-double complex sw_path_followed_vertex(const sw_path *path, size_t k);
+ * to the marked side (so that a path along x+i0 passes the axis above).
+ * SCALE is sw_path_scale(path) (passed in so that loops compute it once). */
+double complex sw_path_followed_vertex(const sw_path *path, size_t k, double scale);
 
 /* Net number of counter-clockwise turns of the finite part of PATH around C
  * (a real number; an integer for closed paths).  Exact for polylines. */

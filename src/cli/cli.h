@@ -41,9 +41,28 @@ typedef struct cli {
     sw_params params;
     /* loaded by cli_load */
     sw_func *f;
+    int f_borrowed;          /* f belongs to the batch cache */
     sw_path p;
     int have_path;
+    sw_points pts_store;     /* points computed for this command (not cached) */
 } cli;
+
+/* Batch mode: functions and their branch points are cached across queries,
+ * documents are captured instead of printed, errors are captured instead of
+ * written to stderr.  NULL outside batch mode. */
+typedef struct cli_batch_ctx cli_batch_ctx;
+extern cli_batch_ctx *cli_batch;
+cli_batch_ctx *cli_batch_new(void);
+void cli_batch_free(cli_batch_ctx *b);
+/* The captured document (ownership passes to the caller) or NULL. */
+json_t *cli_batch_take_doc(cli_batch_ctx *b);
+/* The captured error message or NULL. */
+const char *cli_batch_error(const cli_batch_ctx *b);
+void cli_batch_reset(cli_batch_ctx *b);
+
+/* The branch points of c->f (cached in batch mode; computed once per command
+ * otherwise).  Returns SW_OK or a failure with ERR filled. */
+sw_status cli_get_points(cli *c, const sw_points **pts, int certify, sw_error *err);
 
 void cli_init(cli *c, const char *cmd, unsigned accepted);
 void cli_clear(cli *c);
@@ -99,5 +118,8 @@ int cmd_loop(int argc, char **argv);
 int cmd_sheets(int argc, char **argv);
 int cmd_cuts(int argc, char **argv);
 int cmd_which(int argc, char **argv);
+int cmd_batch(int argc, char **argv);
+/* The command NAME from the table in main.c, or NULL (batch mode). */
+int (*cli_command(const char *name))(int, char **);
 
 #endif

@@ -32,24 +32,23 @@ int cmd_cuts(int argc, char **argv)
 {
     cli c;
     sw_error err;
-    sw_points pts;
+    const sw_points *pts = NULL;
     sw_cuts cuts;
     sw_cut_report rep;
     sw_branch *b = NULL;
-    sw_points_init(&pts);
     sw_cuts_init(&cuts);
     sw_cut_report_init(&rep);
     cli_init(&c, "cuts", OPT_FUNC | OPT_CUT | OPT_FIX | OPT_JSON);
     int rc = cli_parse(&c, argc, argv, help);
     if (rc < 0)
         rc = cli_load(&c, 0, &err);
-    if (rc < 0 && sw_points_compute(&pts, c.f, NULL, &err) != SW_OK)
+    if (rc < 0 && cli_get_points(&c, &pts, 0, &err) != SW_OK)
         rc = cli_fail(&c, &err);
     if (rc < 0)
-        rc = cli_load_cuts(&c, &cuts, &pts, &err);
+        rc = cli_load_cuts(&c, &cuts, pts, &err);
     if (rc < 0)
-        rc = cli_regular_branch(&c, &b, &cuts, &pts, &err);
-    if (rc < 0 && sw_cuts_check(&rep, c.f, &pts, &cuts, b, &err) != SW_OK)
+        rc = cli_regular_branch(&c, &b, &cuts, pts, &err);
+    if (rc < 0 && sw_cuts_check(&rep, c.f, pts, &cuts, b, &err) != SW_OK)
         rc = cli_fail(&c, &err);
     /* values at --eval points */
     size_t nv = c.nevals;
@@ -136,9 +135,9 @@ int cmd_cuts(int argc, char **argv)
             json_object_set_new(inf, "branched", rep.inf_branched < 0 ? json_null()
                                                  : json_boolean(rep.inf_branched));
             json_object_set_new(inf, "reached_by_cut", json_boolean(rep.inf_reached));
-            if (!curve && pts.complete)
+            if (!curve && pts->complete)
                 json_object_set_new(inf, "leading_exponent",
-                                    pts.inf_exponent_ok ? json_real(pts.inf_exponent)
+                                    pts->inf_exponent_ok ? json_real(pts->inf_exponent)
                                                         : json_null());
             json_object_set_new(d, "infinity", inf);
             json_t *fx = json_object();
@@ -175,9 +174,9 @@ int cmd_cuts(int argc, char **argv)
             }
             printf("regular branch: fixed at z = %s where w = %s%s\n", cfmt(b1, sizeof b1, a->z),
                    cfmt(b2, sizeof b2, aw), c.fix ? "" : " (default: principal / sheet 1)");
-            if (!curve && pts.complete && pts.inf_exponent_ok)
+            if (!curve && pts->complete && pts->inf_exponent_ok)
                 printf("at infinity: |f| ~ |z|^%.6g (numerical estimate); %s\n",
-                       pts.inf_exponent, rep.inf_branched == 1 ? "branched" : "not branched");
+                       pts->inf_exponent, rep.inf_branched == 1 ? "branched" : "not branched");
             printf("\nverdict: %s\n", rep.single_valued
                                           ? "single-valued on the plane minus the cuts"
                                           : "NOT shown single-valued on the plane minus the cuts");
@@ -221,7 +220,6 @@ int cmd_cuts(int argc, char **argv)
     sw_branch_free(b);
     sw_cut_report_clear(&rep);
     sw_cuts_clear(&cuts);
-    sw_points_clear(&pts);
     cli_clear(&c);
     return rc;
 }

@@ -19,30 +19,26 @@ int cmd_points(int argc, char **argv)
 {
     cli c;
     sw_error err;
-    sw_points pts;
-    sw_points_init(&pts);
+    const sw_points *pts = NULL;
     cli_init(&c, "points", OPT_FUNC | OPT_CERTIFY | OPT_JSON);
     int rc = cli_parse(&c, argc, argv, help);
     if (rc < 0)
         rc = cli_load(&c, 0, &err);
     if (rc < 0) {
-        sw_points_opts o;
-        sw_points_opts_init(&o);
-        o.certify = c.certify;
-        if (sw_points_compute(&pts, c.f, &o, &err) != SW_OK)
+        if (cli_get_points(&c, &pts, c.certify, &err) != SW_OK)
             rc = cli_fail(&c, &err);
     }
     if (rc < 0) {
         if (c.json) {
             json_t *d = cli_doc(&c);
-            json_t *pj = cli_points_json(&pts, c.f);
+            json_t *pj = cli_points_json(pts, c.f);
             json_object_update(d, pj);
             json_decref(pj);
             cli_emit(d);
         } else {
             printf("function: %s (%s)\n", sw_func_text(c.f),
                    sw_func_kind_of(c.f) == SW_FUNC_EXPR ? "expression" : "curve");
-            cli_points_table(stdout, &pts, c.f);
+            cli_points_table(stdout, pts, c.f);
             printf("%s\n", c.certify ? "loops tracked in ball arithmetic (see 'certified' in "
                                        "--json per point)"
                                      : "loops tracked in double precision: numerical evidence, "
@@ -50,7 +46,6 @@ int cmd_points(int argc, char **argv)
         }
         rc = 0;
     }
-    sw_points_clear(&pts);
     cli_clear(&c);
     return rc;
 }

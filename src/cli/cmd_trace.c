@@ -96,7 +96,7 @@ typedef struct run {
     cli c;
     sw_germ start;
     sw_trace tr;
-    sw_points pts;
+    const sw_points *pts;
     int have_pts, have_germ;
     sw_error pts_err;
 } run;
@@ -105,7 +105,7 @@ static int run_track(run *r, int argc, char **argv, const char *help, int need_c
 {
     sw_error err;
     sw_trace_init(&r->tr);
-    sw_points_init(&r->pts);
+    r->pts = NULL;
     r->have_pts = r->have_germ = 0;
     int rc = cli_parse(&r->c, argc, argv, help);
     if (rc >= 0)
@@ -133,9 +133,7 @@ static int run_track(run *r, int argc, char **argv, const char *help, int need_c
         return rc;
     if (sw_track_run(&r->tr, r->c.f, &r->start, &r->c.p, &o, &err) != SW_OK)
         return cli_fail(&r->c, &err);
-    sw_points_opts po;
-    sw_points_opts_init(&po);
-    r->have_pts = sw_points_compute(&r->pts, r->c.f, &po, &r->pts_err) == SW_OK;
+    r->have_pts = cli_get_points(&r->c, &r->pts, 0, &r->pts_err) == SW_OK;
     return -1;
 }
 
@@ -144,7 +142,6 @@ static void run_clear(run *r)
     if (r->have_germ)
         sw_germ_clear(&r->start);
     sw_trace_clear(&r->tr);
-    sw_points_clear(&r->pts);
     cli_clear(&r->c);
 }
 
@@ -155,8 +152,8 @@ static json_t *winding(const run *r, int print)
     if (!r->have_pts)
         return a;
     int header = 0;
-    for (size_t k = 0; k < r->pts.n; k++) {
-        const sw_point *pt = &r->pts.pt[k];
+    for (size_t k = 0; k < r->pts->n; k++) {
+        const sw_point *pt = &r->pts->pt[k];
         if (pt->kind != SW_POINT_BRANCH)
             continue;
         double t = sw_path_winding(&r->c.p, pt->z);
@@ -202,7 +199,7 @@ static json_t *crossings(const run *r, int print)
     sw_germ_init(&gt, c->f);
     sw_germ_init(&gr, c->f);
     cli tmp = *c; /* cli_load_cuts only reads c */
-    if (cli_load_cuts(&tmp, &cuts, &r->pts, &err) >= 0)
+    if (cli_load_cuts(&tmp, &cuts, r->pts, &err) >= 0)
         goto cleanup;
     if (sw_cuts_crossings(&x, &nx, &cuts, &c->p, &err) != SW_OK)
         goto cleanup;
@@ -278,17 +275,17 @@ static json_t *word(const run *r, int print)
     sw_error err;
     sw_crossing *x = NULL;
     size_t nx = 0;
-    if (!r->have_pts || sw_cuts_default(&cuts, &r->pts, &err) != SW_OK ||
+    if (!r->have_pts || sw_cuts_default(&cuts, r->pts, &err) != SW_OK ||
         sw_cuts_crossings(&x, &nx, &cuts, &r->c.p, &err) != SW_OK) {
         json_object_set_new(o, "word", json_null());
         goto cleanup;
     }
     /* generator k <-> the k-th branch point (in the order of 'points') */
-    size_t *gen_of = calloc(r->pts.n ? r->pts.n : 1, sizeof *gen_of);
+    size_t *gen_of = calloc(r->pts->n ? r->pts->n : 1, sizeof *gen_of);
     json_t *gens = json_array();
     size_t g = 0;
-    for (size_t k = 0; gen_of && k < r->pts.n; k++)
-        if (r->pts.pt[k].kind == SW_POINT_BRANCH)
+    for (size_t k = 0; gen_of && k < r->pts->n; k++)
+        if (r->pts->pt[k].kind == SW_POINT_BRANCH)
             gen_of[k] = ++g;
     for (size_t k = 0; k < cuts.n; k++) {
         json_t *e = json_object();
@@ -417,7 +414,7 @@ int cmd_trace(int argc, char **argv)
             json_object_set_new(d, "vertices", verts);
             json_object_set_new(d, "winding", wd);
             json_object_set_new(d, "winding_complete", json_boolean(r.have_pts &&
-                                                                    r.pts.complete));
+                                                                    r.pts->complete));
             json_object_set_new(d, "certified", json_boolean(r.c.certify && r.tr.certified));
             cli_emit(d);
         } else {
@@ -426,9 +423,9 @@ int cmd_trace(int argc, char **argv)
             json_decref(cx);
             if (!r.have_pts)
                 printf("\n(turns not reported: %s)\n", r.pts_err.msg);
-            else if (!r.pts.complete)
+            else if (!r.pts->complete)
                 printf("\n(turns listed only for the branch points found: %s)\n",
-                       r.pts.incomplete);
+                       r.pts->incomplete);
             certification_line(&r);
         }
         rc = finish(&r);

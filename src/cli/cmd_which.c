@@ -30,12 +30,11 @@ int cmd_which(int argc, char **argv)
 {
     cli c;
     sw_error err;
-    sw_points pts;
+    const sw_points *pts = NULL;
     sw_cuts cuts;
     sw_branch *b = NULL;
     sw_germ g, gb;
     int have_g = 0;
-    sw_points_init(&pts);
     sw_cuts_init(&cuts);
     cli_init(&c, "which", OPT_FUNC | OPT_WHICH | OPT_CUT | OPT_JSON);
     int rc = cli_parse(&c, argc, argv, help);
@@ -57,10 +56,10 @@ int cmd_which(int argc, char **argv)
             rc = cli_fail(&c, &err);
         }
     }
-    if (rc < 0 && sw_points_compute(&pts, c.f, NULL, &err) != SW_OK)
+    if (rc < 0 && cli_get_points(&c, &pts, 0, &err) != SW_OK)
         rc = cli_fail(&c, &err);
     if (rc < 0)
-        rc = cli_load_cuts(&c, &cuts, &pts, &err);
+        rc = cli_load_cuts(&c, &cuts, pts, &err);
     if (rc < 0) {
         if (sw_germ_init(&g, c.f) != SW_OK || sw_germ_init(&gb, c.f) != SW_OK) {
             sw_error_set(&err, SW_ENOMEM, "out of memory");
@@ -188,7 +187,6 @@ int cmd_which(int argc, char **argv)
     }
     sw_branch_free(b);
     sw_cuts_clear(&cuts);
-    sw_points_clear(&pts);
     cli_clear(&c);
     return rc;
 }

@@ -7,6 +7,87 @@
 
 #include "cli.h"
 
+/* ------------------------------------------------------------ batch cache */
+
+typedef struct cache_entry {
+    char *key;
+    sw_func *f;
+    sw_points pts;
+    int have_pts;
+} cache_entry;
+
+struct cli_batch_ctx {
+    size_t n, alloc;
+    cache_entry *e;
+    json_t *doc;
+    char err[SW_ERROR_MSG_MAX + 128];
+    int have_err;
+};
+
+cli_batch_ctx *cli_batch = NULL;
+
+/* Functions kept at most; beyond it the oldest is dropped. */
+#define CACHE_MAX 64
+
+cli_batch_ctx *cli_batch_new(void) { return calloc(1, sizeof(cli_batch_ctx)); }
+
+void cli_batch_free(cli_batch_ctx *b)
+{
+    if (b == NULL)
+        return;
+    for (size_t k = 0; k < b->n; k++) {
+        free(b->e[k].key);
+        sw_func_free(b->e[k].f);
+        sw_points_clear(&b->e[k].pts);
+    }
+    free(b->e);
+    json_decref(b->doc);
+    free(b);
+}
+
+json_t *cli_batch_take_doc(cli_batch_ctx *b)
+{
+    json_t *d = b->doc;
+    b->doc = NULL;
+    return d;
+}
+
+const char *cli_batch_error(const cli_batch_ctx *b) { return b->have_err ? b->err : NULL; }
+
+void cli_batch_reset(cli_batch_ctx *b)
+{
+    json_decref(b->doc);
+    b->doc = NULL;
+    b->have_err = 0;
+    b->err[0] = '\0';
+}
+
+static char *cache_key(const cli *c)
+{
+    size_t n = 64 + strlen(c->function ? c->function : c->curve);
+    for (size_t k = 0; k < c->params.n; k++)
+        n += strlen(c->params.names[k]) + 64;
+    char *key = malloc(n);
+    if (key == NULL)
+        return NULL;
+    size_t used = (size_t)snprintf(key, n, "%c:%s", c->function ? 'f' : 'c',
+                                   c->function ? c->function : c->curve);
+    for (size_t k = 0; k < c->params.n && used < n; k++)
+        used += (size_t)snprintf(key + used, n - used, "|%s=%a,%a", c->params.names[k],
+                                 creal(c->params.values[k]), cimag(c->params.values[k]));
+    return key;
+}
+
+static cache_entry *cache_find(const cli *c)
+{
+    if (cli_batch == NULL || c->f == NULL)
+        return NULL;
+    for (size_t k = 0; k < cli_batch->n; k++)
+        if (cli_batch->e[k].f == c->f)
+            return &cli_batch->e[k];
+    return NULL;
+}
+
 void cli_init(cli *c, const char *cmd, unsigned accepted)
 {
     memset(c, 0, sizeof *c);
@@ -14,31 +95,67 @@ void cli_init(cli *c, const char *cmd, unsigned accepted)
     c->accepted = accepted;
     sw_params_init(&c->params);
     sw_path_init(&c->p);
+    sw_points_init(&c->pts_store);
 }
 
 void cli_clear(cli *c)
 {
     sw_params_clear(&c->params);
     sw_path_clear(&c->p);
-    sw_func_free(c->f);
+    sw_points_clear(&c->pts_store);
+    if (!c->f_borrowed)
+        sw_func_free(c->f);
     c->f = NULL;
+}
+
+sw_status cli_get_points(cli *c, const sw_points **pts, int certify, sw_error *err)
+{
+    sw_points_opts o;
+    sw_points_opts_init(&o);
+    o.certify = certify;
+    cache_entry *e = certify ? NULL : cache_find(c);
+    if (e != NULL) {
+        if (!e->have_pts) {
+            sw_status st = sw_points_compute(&e->pts, c->f, &o, err);
+            if (st != SW_OK)
+                return st;
+            e->have_pts = 1;
+        }
+        *pts = &e->pts;
+        return SW_OK;
+    }
+    sw_points_clear(&c->pts_store);
+    sw_status st = sw_points_compute(&c->pts_store, c->f, &o, err);
+    if (st == SW_OK)
+        *pts = &c->pts_store;
+    return st;
 }
 
 int cli_fail(const cli *c, const sw_error *err)
 {
-    fprintf(stderr, "sheetwalk: %s: %s\n", c->cmd, err->msg[0] ? err->msg :
-            sw_status_name(err->code));
+    const char *msg = err->msg[0] ? err->msg : sw_status_name(err->code);
+    if (cli_batch) {
+        snprintf(cli_batch->err, sizeof cli_batch->err, "%s: %s", c->cmd, msg);
+        cli_batch->have_err = 1;
+    } else {
+        fprintf(stderr, "sheetwalk: %s: %s\n", c->cmd, msg);
+    }
     return sw_status_exit_code(err->code);
 }
 
 int cli_usage(const cli *c, const char *fmt, ...)
 {
     va_list ap;
-    fprintf(stderr, "sheetwalk: %s: ", c->cmd);
+    char msg[SW_ERROR_MSG_MAX];
     va_start(ap, fmt);
-    vfprintf(stderr, fmt, ap);
+    vsnprintf(msg, sizeof msg, fmt, ap);
     va_end(ap);
-    fprintf(stderr, " (see 'sheetwalk %s --help')\n", c->cmd);
+    if (cli_batch) {
+        snprintf(cli_batch->err, sizeof cli_batch->err, "%s: %s", c->cmd, msg);
+        cli_batch->have_err = 1;
+    } else {
+        fprintf(stderr, "sheetwalk: %s: %s (see 'sheetwalk %s --help')\n", c->cmd, msg, c->cmd);
+    }
     return 2;
 }
 
@@ -83,7 +200,7 @@ static int once(cli *c, const char **slot, const char *val, const char *name)
 int cli_parse(cli *c, int argc, char **argv, const char *help)
 {
     opterr = 0;
-    optind = 1;
+    optind = 0; /* GNU getopt: full re-initialisation (batch mode parses many times) */
     for (;;) {
         int lidx = -1;
         int ch = getopt_long(argc, argv, "+f:c:p:o:h", long_opts, &lidx);
@@ -171,10 +288,47 @@ int cli_load(cli *c, int need_path, sw_error *err)
     if (!c->function && !c->curve)
         return cli_usage(c, "no function: give -f EXPR (an expression in z) or -c POLY (a "
                             "curve P(z, w) = 0)");
-    if (c->function)
+    char *key = cli_batch ? cache_key(c) : NULL;
+    for (size_t k = 0; key && k < cli_batch->n; k++)
+        if (strcmp(cli_batch->e[k].key, key) == 0) {
+            c->f = cli_batch->e[k].f;
+            c->f_borrowed = 1;
+            break;
+        }
+    if (c->f)
+        st = SW_OK;
+    else if (c->function)
         st = sw_func_from_expr(&c->f, c->function, &c->params, err);
     else
         st = sw_func_from_curve(&c->f, c->curve, &c->params, err);
+    if (st == SW_OK && key && !c->f_borrowed) {
+        /* keep it for the next queries */
+        if (cli_batch->n == CACHE_MAX) {
+            free(cli_batch->e[0].key);
+            sw_func_free(cli_batch->e[0].f);
+            sw_points_clear(&cli_batch->e[0].pts);
+            memmove(cli_batch->e, cli_batch->e + 1, (CACHE_MAX - 1) * sizeof *cli_batch->e);
+            cli_batch->n--;
+        }
+        if (cli_batch->n == cli_batch->alloc) {
+            size_t na = cli_batch->alloc ? 2 * cli_batch->alloc : 8;
+            cache_entry *ne = realloc(cli_batch->e, na * sizeof *ne);
+            if (ne) {
+                cli_batch->e = ne;
+                cli_batch->alloc = na;
+            }
+        }
+        if (cli_batch->n < cli_batch->alloc) {
+            cache_entry *e = &cli_batch->e[cli_batch->n++];
+            e->key = key;
+            key = NULL;
+            e->f = c->f;
+            sw_points_init(&e->pts);
+            e->have_pts = 0;
+            c->f_borrowed = 1;
+        }
+    }
+    free(key);
     if (st != SW_OK) {
         sw_error_prefix(err, "%s '%.200s'", c->function ? "expression" : "curve",
                         c->function ? c->function : c->curve);
@@ -264,6 +418,11 @@ json_t *cli_doc(const cli *c)
 
 void cli_emit(json_t *doc)
 {
+    if (cli_batch) {
+        json_decref(cli_batch->doc);
+        cli_batch->doc = doc;
+        return;
+    }
     char *s = json_dumps(doc, JSON_REAL_PRECISION(17) | JSON_PRESERVE_ORDER);
     if (s) {
         fputs(s, stdout);

@@ -10,6 +10,7 @@ typedef struct command {
     const char *summary;
 } command;
 
+
 static const command commands[] = {
     {"demo", cmd_demo, "a guided scenario: a two-channel amplitude continued across its cuts"},
     {"points", cmd_points, "branch points, their local monodromy, and infinity"},
@@ -17,11 +18,20 @@ static const command commands[] = {
     {"loop", cmd_loop, "what a closed path does to the function (multiplier, permutation)"},
     {"cuts", cmd_cuts, "check a cut system: single-valued? jumps across every piece; --eval"},
     {"which", cmd_which, "which sheet a value at a point is on, seen from a base point"},
+    {"batch", cmd_batch, "JSON Lines queries on stdin, one JSON answer per line on stdout"},
     {NULL, NULL, NULL}};
 
+/* For batch mode: the command NAME, or NULL. */
+int (*cli_command(const char *name))(int, char **)
+{
+    for (const command *c = commands; c->name; c++)
+        if (strcmp(c->name, name) == 0)
+            return c->run;
+    return NULL;
+}
+
 /* Commands of the contract that later versions add. */
-static const char *const planned[] = {"sheets", "integrate", "audit", "plot",
-                                      "batch", NULL};
+static const char *const planned[] = {"sheets", "integrate", "audit", "plot", NULL};
 
 static void usage(FILE *fp)
 {
