@@ -972,8 +972,13 @@ sw_status sw_cuts_crossings(sw_crossing **out, size_t *nout, const sw_cuts *c, c
             double den = cross(b - a, q2 - q1);
             if (den == 0 || !seg_meet(a, b, q1, q2, 0, &s, &t))
                 continue;
-            /* count a crossing at a path vertex once (on the segment it starts) */
+            /* count a crossing at a path vertex once (on the segment it starts);
+               a path that starts on a cut is taken to start on the side it
+               leaves to, one that ends on a cut to end beyond it, so that a
+               closed path based on a cut crosses it once, on its return */
             if (s >= 1 && k + 2 < p->n)
+                continue;
+            if (k == 0 && s <= 0)
                 continue;
             if (n == alloc) {
                 alloc = alloc ? 2 * alloc : 16;

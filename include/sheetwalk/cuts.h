@@ -123,7 +123,9 @@ void sw_cut_report_clear(sw_cut_report *r);
 sw_status sw_cuts_check(sw_cut_report *r, const sw_func *f, const sw_points *pts,
                         const sw_cuts *c, const sw_branch *b, sw_error *err);
 
-/* Crossings of PATH with the cut pieces, in path order. */
+/* Crossings of PATH with the cut pieces, in path order.  A path that starts on
+ * a cut is taken to start on the side it leaves to; one that ends on a cut,
+ * to end beyond it (so a closed path based on a cut crosses it once). */
 typedef struct sw_crossing {
     double t;                  /* path parameter */
     double complex z;          /* where */
