@@ -626,6 +626,24 @@ sw_status sw_expr_parse(sw_expr **out, const char *text, const sw_params *params
             e->node[k].mv = (int)m;
             e->mv_node[m++] = (int)k;
         }
+    /* nodes on the way to a multivalued operand (children come first, so a
+       backward sweep sees every parent before its children) */
+    e->need = calloc(e->n ? e->n : 1, 1);
+    if (e->need == NULL) {
+        sw_expr_free(e);
+        return sw_error_set(err, SW_ENOMEM, "out of memory");
+    }
+    for (size_t k = e->n; k-- > 0;) {
+        const sw_node *nd = &e->node[k];
+        if (node_is_mv(nd))
+            e->need[nd->a] = 1;
+        if (e->need[k]) {
+            if (nd->a >= 0)
+                e->need[nd->a] = 1;
+            if (nd->b >= 0)
+                e->need[nd->b] = 1;
+        }
+    }
     *out = e;
     return SW_OK;
 }
@@ -637,6 +655,7 @@ void sw_expr_free(sw_expr *e)
     free(e->text);
     free(e->node);
     free(e->mv_node);
+    free(e->need);
     free(e);
 }
 
@@ -717,38 +736,52 @@ static double complex mv_value(const sw_node *nd, double complex L, const double
     }
 }
 
+/* Fast complex helpers for the step: the library versions guard against
+ * overflow with scaling (hypot, __divdc3); here the moduli are checked to lie
+ * well inside the double range first and the library is used otherwise. */
+static inline int tame(double a2) { return a2 > 1e-280 && a2 < 1e280; }
+
 int sw_expr_eval_step(double complex *value, double complex *new_state, const sw_expr *e,
                       double complex z, double complex w, const double complex *old_state,
                       double rho, double complex *vals)
 {
+    int full = value != NULL;
+    double rho2 = rho * rho;
     for (size_t k = 0; k < e->n; k++) {
         const sw_node *nd = &e->node[k];
+        if (!full && !e->need[k] && nd->mv < 0)
+            continue; /* not on the way to any multivalued operand */
         switch (nd->kind) {
             EVAL_SINGLE(nd, vals);
         case N_POW: case N_POWG: case N_LOG: {
             int m = nd->mv;
-            double complex u = vals[nd->a];
-            if (u == 0 || !finite_c(u))
+            double complex u = vals[nd->a], u0 = old_state[2 * m];
+            double ur = creal(u), ui = cimag(u);
+            double a2 = ur * ur + ui * ui, b2 = creal(u0) * creal(u0) + cimag(u0) * cimag(u0);
+            if (a2 == 0 || !isfinite(a2) || !finite_c(u))
                 return -2 - m;
-            double complex r = u / old_state[2 * m];
-            if (rho >= 0 && cabs(r - 1.0) > rho)
+            double complex r = tame(a2) && tame(b2) ? u * conj(u0) / b2 : u / u0;
+            double dr = creal(r) - 1, di = cimag(r);
+            if (rho >= 0 && dr * dr + di * di > rho2)
                 return m;
             /* the continued argument decides only the branch integer k; the
                value is recomputed as Log u + 2 pi i k, so rounding errors do not
                accumulate along the path */
-            double im = cimag(old_state[2 * m + 1]) + carg(r);
-            double complex L = clog(u);
-            double k2 = nearbyint((im - cimag(L)) / (2 * PI));
-            if (k2 != 0)
-                L += CMPLX(0.0, 2 * PI * k2);
+            double im = cimag(old_state[2 * m + 1]) + atan2(cimag(r), creal(r));
+            double arg = atan2(ui, ur);
+            double re = tame(a2) ? 0.5 * log(a2) : log(cabs(u));
+            double k2 = nearbyint((im - arg) / (2 * PI));
+            double complex L = CMPLX(re, arg + 2 * PI * k2);
             new_state[2 * m] = u;
             new_state[2 * m + 1] = L;
-            vals[k] = mv_value(nd, L, vals);
+            if (full || e->need[k])
+                vals[k] = mv_value(nd, L, vals);
             break;
         }
         }
     }
-    *value = vals[e->n - 1];
+    if (full)
+        *value = vals[e->n - 1];
     return -1;
 }
 

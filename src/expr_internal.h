@@ -34,6 +34,7 @@ struct sw_expr {
     size_t n, alloc;
     size_t nmv;
     int *mv_node;         /* node index of each multivalued node */
+    char *need;           /* need[k]: node k feeds some multivalued operand */
     int uses_z, uses_w;
 };
 
@@ -43,7 +44,8 @@ struct sw_expr {
  * the index k of the first multivalued node whose ratio test |u'/u - 1| <= rho
  * fails (rho < 0 disables the test), or -2 - k when the operand of node k is
  * zero or not finite.  NEW_STATE may equal OLD_STATE.  VALS is scratch of n
- * slots; *VALUE receives the root's value. */
+ * slots; *VALUE receives the root's value — VALUE NULL skips every node that
+ * no multivalued operand depends on (the fast path of the tracker). */
 int sw_expr_eval_step(double complex *value, double complex *new_state,
                       const sw_expr *e, double complex z, double complex w,
                       const double complex *old_state, double rho, double complex *vals);

@@ -373,6 +373,18 @@ static json_t *common_doc(const run *r)
 
 static int finish(const run *r)
 {
+    /* a value that double precision cannot hold (or a pole of a single-valued
+       part at a vertex) is printed as null: say so, and flag the result */
+    for (size_t k = 0; k < r->tr.nvert; k++) {
+        double complex w = sw_func_value(r->c.f, &r->tr.vert[k]);
+        if (!isfinite(creal(w)) || !isfinite(cimag(w))) {
+            sw_error e;
+            sw_error_set(&e, SW_ETOLERANCE,
+                         "the value at vertex %zu is not a finite double (beyond double range, "
+                         "or a pole there); it is reported as null", k + 1);
+            return cli_fail(&r->c, &e);
+        }
+    }
     return (r->c.certify && !r->tr.certified) ? 1 : 0;
 }
 
