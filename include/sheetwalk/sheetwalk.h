@@ -8,5 +8,6 @@
 #include "sheetwalk/func.h"
 #include "sheetwalk/track.h"
 #include "sheetwalk/monodromy.h"
+#include "sheetwalk/integrate.h"
 #include "sheetwalk/cuts.h"
 #endif

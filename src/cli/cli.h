@@ -116,6 +116,7 @@ int cmd_points(int argc, char **argv);
 int cmd_trace(int argc, char **argv);
 int cmd_loop(int argc, char **argv);
 int cmd_sheets(int argc, char **argv);
+int cmd_integrate(int argc, char **argv);
 int cmd_cuts(int argc, char **argv);
 int cmd_which(int argc, char **argv);
 int cmd_batch(int argc, char **argv);

@@ -1,0 +1,173 @@
+/* sheetwalk — integrals of the tracked branch along a path.
+ *
+ * The integral of f(z) dz (expressions) or R(z, w) dz (any function: w is the
+ * tracked value, R a single-valued expression in z and w, default R = w)
+ * along a polyline, on the branch fixed at one vertex and continued along the
+ * path by the tracker.  Quadrature points are evaluated from the tracker's
+ * dense log, so the branch is never re-chosen.
+ *
+ * Methods (the numbers below are defaults of sw_integrate_opts):
+ *   - smooth pieces: adaptive Gauss-Kronrod (GSL QAG, 21-point rule) on the
+ *     real and imaginary parts, sharing every integrand value (R. Piessens
+ *     et al., QUADPACK, Springer 1983);
+ *   - an end of the path at a branch point, a pole or an operand zero (a
+ *     "singular end"): the local behaviour x^alpha H(x^(1/q)) of the integrand
+ *     in the distance x from the end is detected automatically: alpha mod 1/q
+ *     and q from continuation around small circles (the ratio after q turns
+ *     is exp(2 pi i q alpha) at every radius), the integer part from the
+ *     decay of |f| at geometric distances.  Such ends are integrated by
+ *     Gauss-Jacobi rules (GSL gsl_integration_fixed) in s = x^(1/q) with the
+ *     weight s^(q(alpha+1)-1), so that only the analytic H is sampled;
+ *     x^alpha (A(x) log x + B(x)) ends of expressions (logarithms) are split
+ *     into A and B by the shift one turn applies to the logarithms, and
+ *     integrated with GSL QAWS (algebraic-logarithmic weights); anything else
+ *     falls back to the double-exponential (tanh-sinh) rule of H. Takahasi,
+ *     M. Mori, Publ. RIMS 9 (1974) 721-741, with the innermost tail taken
+ *     from the local power law and its uncertainty added to abserr.  An end
+ *     with Re alpha <= -1 is not integrable and is refused (SW_EINPUT);
+ *   - 'inf' ends: the ray z = z_e + u d, u in [0, inf), is mapped to
+ *     s = L/(u + L) in (0, 1] and the point at infinity is treated as a
+ *     singular end in s; the integrand must decay faster than 1/|z|
+ *     (f ~ z^beta with Re beta < -1), otherwise the ray is refused;
+ *   - a closed path made by the path directive "circle C R N" (N >= 16) is
+ *     integrated on the circle itself: by the trapezoidal rule, which
+ *     converges geometrically for periodic analytic integrands
+ *     (L. N. Trefethen, J. A. C. Weideman, SIAM Review 56 (2014) 385-458),
+ *     when the integrand returns to its start value after the turn, else by
+ *     QAG in the angle.  The circle is used only when continuation along it
+ *     ends on the same branch as along the polygon.
+ *
+ * Branch conventions.  The branch is fixed at vertex VERTEX (0-based, finite
+ * vertices) to the sheet nearest *W (W NULL: the principal branch of every
+ * root, power and log of an expression, sheet 1 of a curve).  When that
+ * vertex is a singular end (a branch point has no value), the branch is fixed
+ * at the point of the adjacent segment at distance SW_INTEGRATE_INSET times
+ * the path scale from the vertex — in practice the limit along the segment.
+ * A path through a singular point at an interior vertex is continued past it
+ * on the side given by the vertex's bank mark (x+i0: a small half-circle
+ * above, x-i0: below) and refused without a mark.
+ *
+ * Results are numerical, not proofs: "certified" is always 0.  abserr is an
+ * estimate from the quadrature rules (differences between rules of two
+ * orders, Kronrod extensions), plus rounding and tail terms. */
+#ifndef SHEETWALK_INTEGRATE_H
+#define SHEETWALK_INTEGRATE_H
+
+#include <complex.h>
+#include <stddef.h>
+#include "sheetwalk/error.h"
+#include "sheetwalk/expr.h"
+#include "sheetwalk/func.h"
+#include "sheetwalk/path.h"
+#include "sheetwalk/track.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* Distance (relative to the path scale) of the point where the branch is
+ * fixed and tracking starts next to a singular end. */
+#define SW_INTEGRATE_INSET 1e-12
+
+typedef struct sw_integrate_opts {
+    sw_track_opts track;  /* continuation options (keep_log is forced on) */
+    double epsabs;        /* absolute tolerance (default 0) */
+    double epsrel;        /* relative tolerance the result must meet (default 1e-10) */
+    double aim;           /* the rules aim at aim * tolerance, so that the reported
+                             error stays below the tolerance (default 0.01) */
+    size_t limit;         /* most subintervals of one adaptive piece (default 500) */
+    int circle;           /* integrate "circle" paths on the circle (default 1) */
+} sw_integrate_opts;
+
+void sw_integrate_opts_init(sw_integrate_opts *o);
+
+/* How an end of a piece was integrated. */
+typedef enum sw_end_rule {
+    SW_RULE_NONE = 0,       /* a regular end: no special treatment */
+    SW_RULE_JACOBI,         /* Gauss-Jacobi in s = x^(1/q) */
+    SW_RULE_QAWS,           /* algebraic-logarithmic weight (QAWS) */
+    SW_RULE_TANH_SINH       /* double-exponential rule with a modelled tail */
+} sw_end_rule;
+
+/* A singular end of the path (a finite point or infinity). */
+typedef struct sw_integral_end {
+    double complex z;       /* the point (0 at infinity) */
+    int at_infinity;
+    /* local behaviour of the integrand f(z) (dz included for finite ends):
+       finite: f ~ (z - z0)^exponent; infinity: f ~ z^exponent */
+    double complex exponent;
+    int ramification;       /* q: the behaviour is a series in (z - z0)^(1/q)
+                               (0 when not detected) */
+    int logarithmic;        /* a log(z - z0) factor was found */
+    int exact;              /* 1: exponent from continuation (exact to rounding);
+                               0: a numerical estimate */
+    sw_end_rule rule;
+} sw_integral_end;
+
+/* One piece of the path: a finite segment, a ray to or from infinity, or a
+ * whole circle. */
+typedef enum sw_piece_kind {
+    SW_PIECE_SEGMENT = 1,
+    SW_PIECE_RAY_OUT,       /* from `from` to infinity */
+    SW_PIECE_RAY_IN,        /* from infinity to `to` */
+    SW_PIECE_CIRCLE         /* the circle through the path's vertices */
+} sw_piece_kind;
+
+typedef struct sw_integral_piece {
+    sw_piece_kind kind;
+    double complex from, to;   /* ends (the finite ones); circle: centre and radius */
+    double complex value;
+    double abserr;
+    size_t evaluations;
+    const char *method;        /* static text, e.g. "gauss-kronrod" */
+} sw_integral_piece;
+
+/* The result.  Caller-held: sw_integral_init / sw_integral_clear. */
+typedef struct sw_integral {
+    double complex value;
+    double abserr;            /* error estimate (not a bound) */
+    size_t evaluations;       /* integrand evaluations, all pieces and analyses */
+    size_t steps;             /* continuation steps (tracking and small loops) */
+    int converged;            /* 1: abserr <= max(epsabs, epsrel |value|) */
+    int certified;            /* always 0: quadrature is numerical */
+    size_t npieces;
+    sw_integral_piece *piece;
+    size_t nends;
+    sw_integral_end *end;
+    /* the tracked function at the two ends of the path (at the tracking
+       start/end points; NaN at infinity): start_z/end_z are the points */
+    double complex start_z, start_w, end_z, end_w;
+    int closed;               /* the path is closed */
+    /* curves: 1-based sheet labels (fiber order at the point) of the branch at
+       the start and at the end of the path (0 for expressions) */
+    int start_sheet, end_sheet;
+} sw_integral;
+
+void sw_integral_init(sw_integral *r);
+void sw_integral_clear(sw_integral *r);
+
+/* Parse an integrand R(z, w): a single-valued expression (no roots,
+ * non-integer powers or logs; exp, trig, integer powers and division are
+ * fine).  A multivalued integrand is refused with SW_EINPUT naming the node. */
+sw_status sw_integrand_parse(sw_expr **out, const char *text, const sw_params *params,
+                             sw_error *err);
+
+/* The integral of R(z, w(z)) dz along PATH (INTEGRAND NULL: R = w).
+ * VERTEX, W: where and how the branch is fixed (see above).  O NULL: the
+ * defaults.  On success OUT holds the result; when the tolerance was not met
+ * the result is still filled in and SW_ETOLERANCE is returned.  Errors:
+ * SW_EINPUT (non-integrable end, slow decay at infinity, fewer than two
+ * vertices), SW_ESINGULAR (the path meets a singular point at an unmarked
+ * interior vertex or inside a segment), SW_EUSAGE (VERTEX is not a finite
+ * vertex, or is a singular interior vertex), SW_EAMBIGUOUS (two sheets tie
+ * for *W), SW_ENOMEM. */
+sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *integrand,
+                            const sw_path *path, size_t vertex, const double complex *w,
+                            const sw_integrate_opts *o, sw_error *err);
+
+const char *sw_end_rule_name(sw_end_rule r);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

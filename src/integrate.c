@@ -1,0 +1,1822 @@
+/* Integrals of the tracked branch along a path (methods.md §4).
+ *
+ * The path is cut into pieces (finite segments, rays to or from infinity, or
+ * one circle).  Every piece is tracked once (sw_track_run with the dense
+ * log) on one or more "tracked lines", chained so that each starts with the
+ * germ the previous one ended with; every quadrature point is then evaluated
+ * from the dense log (sw_trace_germ_at), so the branch is never re-chosen.
+ *
+ * A piece is integrated in a local variable x: on a segment z = base + x dir
+ * with x the fraction of the segment from one end; on a ray z = c + e / s
+ * with s in (0, 1] (s = 0 is infinity).  An end where the integrand is
+ * singular ("singular end") is analysed by continuation around small circles
+ * |x| = r: after q turns the integrand is multiplied by exp(2 pi i q alpha)
+ * at every radius exactly when F(x) = x^alpha H(x^(1/q)) with H single-valued
+ * near the end (Puiseux; B. Deconinck, M. van Hoeij, Physica D 152-153 (2001)
+ * use the same fact for curves), which yields alpha modulo 1/q to rounding;
+ * the integer part comes from the decay of |F| at geometric distances
+ * (Aitken's delta-squared on the local log-slopes).  Then
+ *     int_0^X F dx = q X^(alpha+1) int_0^1 s^(q(alpha+1)-1) H(X s^q) ds,
+ * a Gauss-Jacobi rule (GSL gsl_integration_fixed) of increasing order samples
+ * only H.  Each value H = F(x^)/x^^alpha uses the local coordinate x^ of the
+ * point where the germ actually is, so that rounding of z0 + x dir next to a
+ * singular end z0 != 0 does not spoil the result.
+ *
+ * Logarithmic ends of expressions, F = x^alpha (A log x + B): when a turn
+ * leaves every operand unchanged and only adds 2 pi i n_k to the logarithm of
+ * operand k, the turned value F1 is computed at every point by shifting the
+ * logarithms, and A x^alpha = (F1/mu - F) / (2 pi i), mu = exp(2 pi i alpha);
+ * both parts are integrated with GSL QAWS (weights x^alpha and x^alpha log x).
+ * Any other end is integrated by the tanh-sinh rule (H. Takahasi, M. Mori,
+ * Publ. RIMS 9 (1974) 721-741) down to a small x_c, plus the tail over
+ * [0, x_c] from the local power law, whose uncertainty goes into abserr.
+ *
+ * Smooth pieces: GSL QAG (21-point Gauss-Kronrod) on the real and the
+ * imaginary part, sharing every complex value through a small cache, so an
+ * evaluation is counted once.  Circles: the trapezoidal rule (geometric
+ * convergence for periodic analytic integrands, L. N. Trefethen,
+ * J. A. C. Weideman, SIAM Review 56 (2014) 385-458). */
+#include <math.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_integration.h>
+
+#include "expr_internal.h"
+#include "func_internal.h"
+#include "sheetwalk/integrate.h"
+
+static const double PI = 3.14159265358979323846;
+static const double EPS = 2.220446049250313e-16;
+
+#define LOOP_VERTICES 16   /* polygon of a small loop: stays within 2% of the circle */
+#define QMAX_EXPR 12       /* most turns tried for an expression end */
+#define RATIO_TOL 1e-8     /* two radii agree on the ratio after q turns (relative) */
+#define SAME_OPERAND 1e-9  /* a turn left an operand unchanged (relative) */
+#define RADIUS_RETRIES 3   /* shrink the loop radii (by 16) this often before giving up */
+#define GJ_FIRST 6         /* Gauss-Jacobi orders 6, 12, 24, 48 */
+#define GJ_LAST 48
+#define SPLIT_DEPTH 6      /* Jacobi zone [0, X] shrinks to [0, X/4^6] at most */
+#define BRIDGE_INSET 1e-9  /* half-circle radius (relative to the path scale) that
+                              carries the branch past a marked interior vertex */
+#define RAY_CHUNK 64.0     /* rays are tracked in pieces [u, 64 u] (own scale each) */
+#define RAY_DEPTH 1e-12    /* tracked rays end at s = 1e-12 (u = 1e12 L) */
+#define COLLIDE 1e-6       /* curve sheets this close (relative) meet: singular */
+#define TS_TMAX 3.5        /* tanh-sinh: |t| <= 3.5, weights below 1e-21 beyond */
+#define TS_LEVELS 8        /* tanh-sinh: step 1/2 down to 1/256 */
+#define TS_CUT 1e-12       /* tanh-sinh: lower cut x_c (relative) before rounding limits */
+#define FAST_DECAY 30.0    /* local exponent above this: F vanishes to all orders */
+
+void sw_integrate_opts_init(sw_integrate_opts *o)
+{
+    sw_track_opts_init(&o->track);
+    o->epsabs = 0;
+    o->epsrel = 1e-10; /* the accuracy the product promises for numerical integrals */
+    o->aim = 0.01;     /* rules aim two digits below the tolerance */
+    o->limit = 500;
+    o->circle = 1;
+}
+
+void sw_integral_init(sw_integral *r) { memset(r, 0, sizeof *r); }
+
+void sw_integral_clear(sw_integral *r)
+{
+    if (r == NULL)
+        return;
+    free(r->piece);
+    free(r->end);
+    memset(r, 0, sizeof *r);
+}
+
+const char *sw_end_rule_name(sw_end_rule r)
+{
+    switch (r) {
+    case SW_RULE_JACOBI: return "gauss-jacobi";
+    case SW_RULE_QAWS: return "qaws";
+    case SW_RULE_TANH_SINH: return "tanh-sinh";
+    default: return "none";
+    }
+}
+
+sw_status sw_integrand_parse(sw_expr **out, const char *text, const sw_params *params,
+                             sw_error *err)
+{
+    *out = NULL;
+    sw_expr *e = NULL;
+    sw_status st = sw_expr_parse(&e, text, params, SW_EXPR_VAR_Z | SW_EXPR_VAR_W, err);
+    if (st != SW_OK)
+        return st;
+    if (sw_expr_mv_count(e) > 0) {
+        char what[160];
+        sw_expr_mv_text(what, sizeof what, e, 0);
+        sw_expr_free(e);
+        return sw_error_set(err, SW_EINPUT,
+                            "the integrand must be single-valued in z and w, but '%s' is a "
+                            "root, non-integer power or log (put it into the function instead)",
+                            what);
+    }
+    *out = e;
+    return SW_OK;
+}
+
+/* ------------------------------------------------------------ tracked lines */
+
+typedef struct tline {
+    sw_path path;      /* 2 vertices (a bridge: 3) */
+    sw_trace tr;
+    double complex p, q;
+    int eval;          /* 1: quadrature points are looked up here */
+    double min_step;   /* tracker floor for this line */
+} tline;
+
+typedef struct zmap {
+    int inf;                  /* 0: z = base + x dir;  1: z = base + dir / x */
+    double complex base, dir;
+    size_t line0, nline;      /* lines (indices into the context) of this piece */
+} zmap;
+
+typedef struct ictx {
+    const sw_func *f;
+    const sw_expr *R;
+    const sw_integrate_opts *o;
+    double scale;
+    size_t evals, steps;
+    sw_germ g, h, k;           /* scratch germs */
+    int expr;
+    size_t nmv;
+    sw_status st;              /* first failure inside a quadrature callback */
+    sw_error err;
+    tline *lines;
+    size_t nlines, alloc;
+    /* results under construction */
+    sw_integral_piece *pieces;
+    size_t npieces, apieces;
+    sw_integral_end *ends;
+    size_t nends, aends;
+} ictx;
+
+static double complex map_z(const zmap *m, double complex x)
+{
+    return m->inf ? m->base + m->dir / x : m->base + x * m->dir;
+}
+
+static double complex map_x(const zmap *m, double complex z)
+{
+    return m->inf ? m->dir / (z - m->base) : (z - m->base) / m->dir;
+}
+
+static double complex map_jac(const zmap *m, double complex x)
+{
+    return m->inf ? -m->dir / (x * x) : m->dir;
+}
+
+static double complex integrand_at(const ictx *c, double complex z, double complex w)
+{
+    return c->R ? sw_expr_eval_principal(c->R, z, w) : w;
+}
+
+/* The error a rule aims at: aim * epsrel relative, but never below the
+ * rounding level of double precision (100 eps relative), which no rule can
+ * certify. */
+static double target(const ictx *c, double tol_abs, double mag)
+{
+    return fmax(tol_abs, fmax(c->o->aim * c->o->epsrel, 100 * EPS) * mag);
+}
+
+static int finite_c(double complex v) { return isfinite(creal(v)) && isfinite(cimag(v)); }
+
+static sw_status fail(ictx *c, sw_status code, const char *msg)
+{
+    if (c->st == SW_OK) {
+        c->st = code;
+        sw_error_set(&c->err, code, "%s", msg);
+    }
+    return code;
+}
+
+/* The tracked line of M nearest to Z, and the parameter of Z on it. */
+static const tline *find_line(const ictx *c, const zmap *m, double complex z, double *t)
+{
+    const tline *best = NULL;
+    double bestd = INFINITY, bt = 0;
+    for (size_t k = m->line0; k < m->line0 + m->nline; k++) {
+        const tline *l = &c->lines[k];
+        if (!l->eval)
+            continue;
+        double tt = creal((z - l->p) / (l->q - l->p));
+        double d = tt < 0 ? -tt : tt > 1 ? tt - 1 : 0;
+        if (d < bestd) {
+            bestd = d;
+            best = l;
+            bt = tt < 0 ? 0 : tt > 1 ? 1 : tt;
+        }
+    }
+    *t = bt;
+    return best;
+}
+
+/* F(x) = R(z, w) dz/dx on the tracked branch, at the logged germ nearest the
+ * point z(x); *XH receives the local coordinate of the point actually used,
+ * c->g the germ there. */
+static int eval_F(ictx *c, const zmap *m, double x, double complex *F, double complex *xh)
+{
+    double t;
+    const tline *l = find_line(c, m, map_z(m, x), &t);
+    sw_error e;
+    if (l == NULL)
+        return fail(c, SW_EINTERNAL, "no tracked line for a quadrature point"), -1;
+    if (sw_trace_germ_at(&c->g, &l->tr, c->f, t, &l->path, &e) != SW_OK)
+        return fail(c, e.code, e.msg), -1;
+    double complex z = c->g.z, w = sw_func_value(c->f, &c->g);
+    double complex X = map_x(m, z);
+    *F = integrand_at(c, z, w) * map_jac(m, X);
+    if (xh)
+        *xh = X;
+    c->evals++;
+    return 0;
+}
+
+/* Expressions: F at the germ G with the logarithm of operand k shifted by
+ * 2 pi i TURNS * shift[k] (the germ layout: u_k at s[2k], L_k at s[2k+1]). */
+static double complex eval_shifted(ictx *c, const zmap *m, const sw_germ *g, const long *shift,
+                                   long turns)
+{
+    sw_germ_copy(&c->h, g);
+    for (size_t k = 0; k < c->nmv; k++)
+        c->h.s[2 * k + 1] += CMPLX(0.0, 2 * PI * (double)(shift[k] * turns));
+    double complex w = sw_func_value(c->f, &c->h);
+    c->evals++;
+    return integrand_at(c, g->z, w) * map_jac(m, map_x(m, g->z));
+}
+
+/* ------------------------------------------------- QAG on complex values */
+
+typedef int (*cfn)(void *arg, double x, double complex *v, double complex *aux);
+
+typedef struct centry {
+    double x;
+    int used;
+    double complex v, aux;
+} centry;
+
+typedef struct qarg {
+    cfn fn;
+    void *arg;
+    centry *tab;
+    size_t cap, n;
+    int part;     /* 0: Re v, 1: Im v, 2: Re aux, 3: Im aux */
+    int failed;
+} qarg;
+
+static size_t hash_x(double x, size_t cap)
+{
+    uint64_t b;
+    memcpy(&b, &x, sizeof b);
+    b ^= b >> 33;
+    b *= 0xff51afd7ed558ccdull;
+    b ^= b >> 33;
+    return (size_t)b & (cap - 1);
+}
+
+static int cache_grow(qarg *q)
+{
+    size_t ncap = q->cap ? 2 * q->cap : 256;
+    centry *nt = calloc(ncap, sizeof *nt);
+    if (nt == NULL)
+        return -1;
+    for (size_t k = 0; k < q->cap; k++)
+        if (q->tab[k].used) {
+            size_t h = hash_x(q->tab[k].x, ncap);
+            while (nt[h].used)
+                h = (h + 1) & (ncap - 1);
+            nt[h] = q->tab[k];
+        }
+    free(q->tab);
+    q->tab = nt;
+    q->cap = ncap;
+    return 0;
+}
+
+static double qpart(double x, void *p)
+{
+    qarg *q = p;
+    if (q->failed)
+        return 0;
+    if (2 * (q->n + 1) > q->cap && cache_grow(q) != 0) {
+        q->failed = 1;
+        return 0;
+    }
+    size_t h = hash_x(x, q->cap);
+    while (q->tab[h].used && q->tab[h].x != x)
+        h = (h + 1) & (q->cap - 1);
+    centry *e = &q->tab[h];
+    if (!e->used) {
+        e->aux = 0;
+        if (q->fn(q->arg, x, &e->v, &e->aux) != 0) {
+            q->failed = 1;
+            return 0;
+        }
+        e->x = x;
+        e->used = 1;
+        q->n++;
+    }
+    double complex v = q->part < 2 ? e->v : e->aux;
+    double r = (q->part & 1) ? cimag(v) : creal(v);
+    if (!isfinite(r)) {
+        q->failed = 1;
+        return 0;
+    }
+    return r;
+}
+
+typedef struct mapfn {
+    ictx *c;
+    const zmap *m;
+} mapfn;
+
+static int map_eval(void *arg, double x, double complex *v, double complex *aux)
+{
+    mapfn *a = arg;
+    (void)aux;
+    if (eval_F(a->c, a->m, x, v, NULL) != 0)
+        return -1;
+    if (!finite_c(*v)) {
+        char msg[200];
+        double complex z = a->c->g.z;
+        snprintf(msg, sizeof msg,
+                 "the integrand is not finite at z = %.10g%+.10gi on the path (a pole or a "
+                 "singular point inside a segment: make it a vertex or avoid it)",
+                 creal(z), cimag(z));
+        return fail(a->c, SW_ESINGULAR, msg), -1;
+    }
+    return 0;
+}
+
+/* int_a^b F(x) dx by QAG on both parts.  TOL_ABS is the absolute target;
+ * with tol_abs <= 0 the target is aim * epsrel * |estimate|. */
+static int qag_c(ictx *c, cfn fn, void *arg, double a, double b, double tol_abs,
+                 double complex *val, double *abserr, int *ok)
+{
+    qarg q = {fn, arg, NULL, 0, 0, 0, 0};
+    gsl_function gf = {qpart, &q};
+    double rr, er, ri, ei, ra, rs;
+    int rc = 0;
+    q.part = 0;
+    gsl_integration_qk21(&gf, a, b, &rr, &er, &ra, &rs);
+    q.part = 1;
+    gsl_integration_qk21(&gf, a, b, &ri, &ei, &ra, &rs);
+    if (q.failed) {
+        rc = -1;
+        goto done;
+    }
+    double est = cabs(CMPLX(rr, ri));
+    double tol = target(c, tol_abs, est);
+    if (!(tol > 0))
+        tol = 1e-300;
+    gsl_integration_workspace *w = gsl_integration_workspace_alloc(c->o->limit);
+    if (w == NULL) {
+        rc = -1;
+        fail(c, SW_ENOMEM, "out of memory");
+        goto done;
+    }
+    q.part = 0;
+    int s1 = gsl_integration_qag(&gf, a, b, tol / 2, 0, c->o->limit, GSL_INTEG_GAUSS21, w, &rr,
+                                 &er);
+    q.part = 1;
+    int s2 = gsl_integration_qag(&gf, a, b, tol / 2, 0, c->o->limit, GSL_INTEG_GAUSS21, w, &ri,
+                                 &ei);
+    gsl_integration_workspace_free(w);
+    if (q.failed) {
+        rc = -1;
+        goto done;
+    }
+    *val = CMPLX(rr, ri);
+    *abserr = er + ei;
+    *ok = s1 == GSL_SUCCESS && s2 == GSL_SUCCESS;
+done:
+    free(q.tab);
+    if (rc != 0 && c->st == SW_OK)
+        fail(c, SW_EINTERNAL, "a quadrature point could not be evaluated");
+    return rc;
+}
+
+static int qag_map(ictx *c, const zmap *m, double a, double b, double tol_abs,
+                   double complex *val, double *abserr, int *ok)
+{
+    mapfn mf = {c, m};
+    return qag_c(c, map_eval, &mf, a, b, tol_abs, val, abserr, ok);
+}
+
+/* ------------------------------------------------------ end analysis */
+
+typedef enum { END_REGULAR, END_PURE, END_LOG, END_OTHER } end_kind;
+
+typedef struct endinfo {
+    end_kind kind;
+    int q;
+    double complex alpha;   /* local exponent of F in x */
+    double complex mu;      /* END_LOG: exp(2 pi i alpha) */
+    long *shift;            /* END_LOG: turns of every operand (nmv entries) */
+    int exact;
+    double alpha_num;       /* numerical estimate of Re alpha */
+} endinfo;
+
+static void endinfo_clear(endinfo *e)
+{
+    free(e->shift);
+    memset(e, 0, sizeof *e);
+}
+
+/* Continue G once around the local origin on |x| = R, counter-clockwise in
+ * x (for the map at infinity that is a clockwise circle in z). */
+static int loop_once(ictx *c, const zmap *m, sw_germ *g, double r)
+{
+    sw_path p;
+    sw_trace tr;
+    sw_path_init(&p);
+    sw_trace_init(&tr);
+    int rc = -1;
+    sw_error e;
+    if (sw_path_push(&p, g->z, SW_BANK_NONE, &e) != SW_OK)
+        goto done;
+    for (int k = 1; k < LOOP_VERTICES; k++) {
+        double a = 2 * PI * k / LOOP_VERTICES;
+        if (sw_path_push(&p, map_z(m, r * CMPLX(cos(a), sin(a))), SW_BANK_NONE, &e) != SW_OK)
+            goto done;
+    }
+    if (sw_path_push(&p, g->z, SW_BANK_NONE, &e) != SW_OK)
+        goto done;
+    sw_track_opts o = c->o->track;
+    o.keep_log = 0;
+    sw_germ start = *g;
+    start.bank = SW_BANK_NONE;
+    if (sw_track_run(&tr, c->f, &start, &p, &o, &e) != SW_OK)
+        goto done;
+    c->steps += tr.steps;
+    sw_germ_copy(g, &tr.vert[tr.nvert - 1]);
+    rc = 0;
+done:
+    sw_trace_clear(&tr);
+    sw_path_clear(&p);
+    return rc;
+}
+
+/* Expressions: does G2 (G after one turn) differ from G only by 2 pi i n_k
+ * in the logarithms?  Fills SHIFT. */
+static int shift_of(ictx *c, const sw_germ *g, const sw_germ *g2, long *shift)
+{
+    for (size_t k = 0; k < c->nmv; k++) {
+        double complex u0 = g->s[2 * k], u1 = g2->s[2 * k];
+        if (cabs(u1 - u0) > SAME_OPERAND * cabs(u0))
+            return 0;
+        double complex dL = g2->s[2 * k + 1] - g->s[2 * k + 1];
+        double n = cimag(dL) / (2 * PI);
+        if (fabs(creal(dL)) > 1e-9 || fabs(n - nearbyint(n)) > 1e-9)
+            return 0;
+        shift[k] = lround(n);
+    }
+    return 1;
+}
+
+static double complex exponent_mod(double complex mu, int q)
+{
+    /* mu = exp(2 pi i q alpha): q alpha = arg(mu)/(2 pi) - i ln|mu|/(2 pi) mod 1 */
+    (void)q;
+    return CMPLX(carg(mu) / (2 * PI), -log(cabs(mu)) / (2 * PI));
+}
+
+/* Classify the end x = 0 of map M from samples up to X0. */
+static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
+{
+    memset(ei, 0, sizeof *ei);
+    double complex Fs[6], xh[6];
+    int zeros = 0;
+    for (int j = 0; j < 6; j++) {
+        if (eval_F(c, m, X0 / (double)(8 << j), &Fs[j], &xh[j]) != 0)
+            return -1;
+        if (!finite_c(Fs[j])) {
+            ei->kind = END_OTHER;
+            ei->alpha_num = -INFINITY;
+            ei->alpha = -INFINITY;
+            return 0;
+        }
+        zeros += Fs[j] == 0;
+    }
+    if (zeros == 6) {
+        ei->kind = END_REGULAR; /* vanishes identically next to the end */
+        return 0;
+    }
+    double lam[5];
+    for (int j = 0; j < 5; j++) {
+        double a = cabs(Fs[j]), b = cabs(Fs[j + 1]);
+        lam[j] = (a > 0 && b > 0) ? log(a / b) / log(cabs(xh[j]) / cabs(xh[j + 1]))
+                                  : (b == 0 ? INFINITY : -INFINITY);
+    }
+    double an = lam[4];
+    double den = lam[4] - 2 * lam[3] + lam[2];
+    if (isfinite(den) && fabs(den) > 1e-12) {
+        double ait = lam[4] - (lam[4] - lam[3]) * (lam[4] - lam[3]) / den;
+        if (isfinite(ait) && fabs(ait - lam[4]) < 0.5)
+            an = ait;
+    }
+    ei->alpha_num = an;
+    ei->alpha = an;
+    if (isnan(an) || an == -INFINITY) {
+        ei->kind = END_OTHER;
+        ei->alpha = -INFINITY;
+        return 0;
+    }
+    if (!(an < FAST_DECAY)) {
+        ei->kind = END_REGULAR; /* decays faster than any power: nothing to resolve */
+        return 0;
+    }
+    size_t qmax = c->expr ? QMAX_EXPR : (sw_func_degree(c->f) ? sw_func_degree(c->f) : 8);
+    long *shift = c->expr && c->nmv ? calloc(c->nmv, sizeof *shift) : NULL;
+    long *shiftb = c->expr && c->nmv ? calloc(c->nmv, sizeof *shiftb) : NULL;
+    sw_germ ga, gb, la, lb;
+    int have = sw_germ_init(&ga, c->f) == SW_OK;
+    have &= sw_germ_init(&gb, c->f) == SW_OK;
+    have &= sw_germ_init(&la, c->f) == SW_OK;
+    have &= sw_germ_init(&lb, c->f) == SW_OK;
+    int rc = 0;
+    if (!have || (c->expr && c->nmv && (!shift || !shiftb))) {
+        fail(c, SW_ENOMEM, "out of memory");
+        rc = -1;
+        goto done;
+    }
+    double ra = X0 / 16, rb = X0 / 128;
+    for (int attempt = 0; attempt < RADIUS_RETRIES && ei->kind == END_REGULAR; attempt++,
+             ra /= 16, rb /= 16) {
+        double complex Fa0, Fb0, xa, xb;
+        if (eval_F(c, m, ra, &Fa0, &xa) != 0) {
+            rc = -1;
+            goto done;
+        }
+        sw_germ_copy(&ga, &c->g);
+        if (eval_F(c, m, rb, &Fb0, &xb) != 0) {
+            rc = -1;
+            goto done;
+        }
+        sw_germ_copy(&gb, &c->g);
+        if (Fa0 == 0 || Fb0 == 0)
+            continue;
+        sw_germ_copy(&la, &ga);
+        sw_germ_copy(&lb, &gb);
+        int shiftmode = 0;
+        double complex Fa[3] = {Fa0, 0, 0}, Fb[3] = {Fb0, 0, 0};
+        for (size_t k = 1; k <= qmax; k++) {
+            double complex fa, fb;
+            if (k == 1 || !shiftmode) {
+                if (loop_once(c, m, &la, ra) != 0 || loop_once(c, m, &lb, rb) != 0)
+                    break;
+                if (k == 1 && c->expr && c->nmv && shift_of(c, &ga, &la, shift) &&
+                    shift_of(c, &gb, &lb, shiftb)) {
+                    if (memcmp(shift, shiftb, c->nmv * sizeof *shift) != 0)
+                        break; /* another operand zero between the radii */
+                    shiftmode = 1;
+                }
+            }
+            if (shiftmode) {
+                fa = eval_shifted(c, m, &ga, shift, (long)k);
+                fb = eval_shifted(c, m, &gb, shift, (long)k);
+            } else {
+                double complex w = sw_func_value(c->f, &la);
+                fa = integrand_at(c, la.z, w) * map_jac(m, map_x(m, la.z));
+                w = sw_func_value(c->f, &lb);
+                fb = integrand_at(c, lb.z, w) * map_jac(m, map_x(m, lb.z));
+                c->evals += 2;
+            }
+            if (k <= 2) {
+                Fa[k] = fa;
+                Fb[k] = fb;
+            }
+            double complex pa = fa / Fa0, pb = fb / Fb0;
+            if (finite_c(pa) && finite_c(pb) &&
+                cabs(pa - pb) <= RATIO_TOL * fmax(1.0, cabs(pa))) {
+                ei->kind = END_PURE;
+                ei->q = (int)k;
+                ei->mu = pa;
+                break;
+            }
+            if (k == 2 && shiftmode) {
+                /* logarithmic: F_k = mu^k (F + k D); 1/mu is a root of
+                   F2 y^2 - 2 F1 y + F0 = 0 common to both radii */
+                double complex ya[2], yb[2];
+                int okq = 1;
+                for (int s = 0; s < 2; s++) {
+                    const double complex *FF = s ? Fb : Fa;
+                    double complex disc = csqrt(FF[1] * FF[1] - FF[0] * FF[2]);
+                    double complex *y = s ? yb : ya;
+                    if (FF[2] == 0) {
+                        okq = 0;
+                        break;
+                    }
+                    y[0] = (FF[1] + disc) / FF[2];
+                    y[1] = (FF[1] - disc) / FF[2];
+                }
+                for (int i = 0; okq && i < 2 && ei->kind != END_LOG; i++)
+                    for (int j = 0; j < 2; j++)
+                        if (finite_c(ya[i]) && cabs(ya[i] - yb[j]) <=
+                                                   RATIO_TOL * fmax(1.0, cabs(ya[i]))) {
+                            double complex mu = 1 / ya[i];
+                            /* confirm with three turns: F3/mu^3 = F0 + 3 D */
+                            double complex D = Fa[1] / mu - Fa[0];
+                            double complex f3 = eval_shifted(c, m, &ga, shift, 3);
+                            if (cabs(f3 / (mu * mu * mu) - (Fa[0] + 3 * D)) <=
+                                    RATIO_TOL * (cabs(Fa[0]) + 3 * cabs(D)) &&
+                                cabs(D) > RATIO_TOL * cabs(Fa[0])) {
+                                ei->kind = END_LOG;
+                                ei->q = 1;
+                                ei->mu = mu;
+                                ei->shift = shift;
+                                shift = NULL;
+                            }
+                            break;
+                        }
+                if (ei->kind == END_LOG)
+                    break;
+            }
+        }
+    }
+    if (ei->kind == END_PURE || ei->kind == END_LOG) {
+        int q = ei->q;
+        double complex a0 = exponent_mod(ei->mu, q);
+        double mm = nearbyint(q * an - creal(a0));
+        ei->alpha = (a0 + mm) / q;
+        ei->exact = 1;
+        /* rationals with small denominators are exact to rounding: snap them */
+        for (int dd = 1; dd <= 64; dd++) {
+            double num = creal(ei->alpha) * dd;
+            if (fabs(num - nearbyint(num)) < 1e-13 * dd) {
+                ei->alpha = CMPLX(nearbyint(num) / dd, cimag(ei->alpha));
+                break;
+            }
+        }
+        /* |mu| = 1 to rounding for real exponents */
+        if (cimag(ei->alpha) != 0 && fabs(cimag(ei->alpha)) < 1e-9 * fmax(1, cabs(ei->alpha)))
+            ei->alpha = creal(ei->alpha);
+    } else {
+        ei->kind = END_OTHER;
+        ei->alpha = an;
+    }
+done:
+    if (have) {
+        sw_germ_clear(&ga);
+        sw_germ_clear(&gb);
+        sw_germ_clear(&la);
+        sw_germ_clear(&lb);
+    }
+    free(shift);
+    free(shiftb);
+    return rc;
+}
+
+/* ------------------------------------------------------- Gauss-Jacobi */
+
+/* One Gauss-Jacobi rule of order N for int_0^X F dx at a pure end (A, q),
+ * or two-sided on [0, 1] when MB is not NULL (weights x^alpha (1-x)^beta,
+ * q = 1).  *ABSUM receives sum |w H| (for the rounding term). */
+static int gj_rule(ictx *c, const zmap *m, const zmap *mb, double X, int q, double alpha,
+                   double beta, int n, double complex *Iv, double *absum)
+{
+    double gam = mb ? alpha : q * (alpha + 1) - 1;
+    gsl_integration_fixed_workspace *w = gsl_integration_fixed_alloc(
+        gsl_integration_fixed_jacobi, (size_t)n, 0.0, 1.0, mb ? beta : 0.0, gam);
+    if (w == NULL)
+        return fail(c, SW_EINTERNAL, "Gauss-Jacobi rule not available for these exponents"), -1;
+    const double *s = gsl_integration_fixed_nodes(w), *wt = gsl_integration_fixed_weights(w);
+    double complex sum = 0;
+    double asum = 0;
+    int rc = 0;
+    for (int j = 0; j < n; j++) {
+        double x = mb ? s[j] : X * pow(s[j], q);
+        double complex F, xh;
+        if (eval_F(c, m, x, &F, &xh) != 0) {
+            rc = -1;
+            break;
+        }
+        double complex H = F / cpow(xh, alpha);
+        if (mb) {
+            double complex xb = map_x(mb, c->g.z);
+            H /= cpow(xb, beta);
+        }
+        if (!finite_c(H)) {
+            rc = -1;
+            fail(c, SW_ESINGULAR, "the integrand is not finite at a quadrature point "
+                                       "next to a singular end");
+            break;
+        }
+        sum += wt[j] * H;
+        asum += fabs(wt[j]) * cabs(H);
+    }
+    gsl_integration_fixed_free(w);
+    double fac = mb ? 1.0 : q * pow(X, alpha + 1);
+    *Iv = fac * sum;
+    *absum = fac * asum;
+    return rc;
+}
+
+/* Orders GJ_FIRST, 2 GJ_FIRST, ... until two agree within TOL. */
+static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double alpha,
+                double beta, double tol_abs, double complex *Iv, double *err, int *ok)
+{
+    double complex prev = 0, cur = 0;
+    double asum = 0;
+    *ok = 0;
+    for (int n = GJ_FIRST; n <= GJ_LAST; n *= 2) {
+        if (gj_rule(c, m, mb, X, q, alpha, beta, n, &cur, &asum) != 0)
+            return -1;
+        if (n > GJ_FIRST) {
+            double e = cabs(cur - prev) + 50 * EPS * asum;
+            double tol = target(c, tol_abs, cabs(cur));
+            *Iv = cur;
+            *err = e;
+            if (e <= tol) {
+                *ok = 1;
+                return 0;
+            }
+        }
+        prev = cur;
+    }
+    return 0;
+}
+
+/* ---------------------------------------------------------------- QAWS */
+
+typedef struct logfn {
+    ictx *c;
+    const zmap *m;
+    const endinfo *ei;
+} logfn;
+
+/* v = A(x), aux = B(x) with F = x^alpha (A log x + B). */
+static int log_eval(void *arg, double x, double complex *v, double complex *aux)
+{
+    logfn *a = arg;
+    double complex F, xh;
+    if (eval_F(a->c, a->m, x, &F, &xh) != 0)
+        return -1;
+    double complex F1 = eval_shifted(a->c, a->m, &a->c->g, a->ei->shift, 1);
+    double complex xa = cpow(xh, a->ei->alpha);
+    double complex A = (F1 / a->ei->mu - F) / CMPLX(0.0, 2 * PI) / xa;
+    *v = A;
+    *aux = F / xa - A * clog(xh);
+    return 0;
+}
+
+static int qaws_log(ictx *c, const zmap *m, const endinfo *ei, double X, double tol_abs,
+                    double complex *val, double *abserr, int *ok)
+{
+    logfn lf = {c, m, ei};
+    qarg q = {log_eval, &lf, NULL, 0, 0, 0, 0};
+    gsl_function gf = {qpart, &q};
+    double alpha = creal(ei->alpha);
+    gsl_integration_qaws_table *t1 = gsl_integration_qaws_table_alloc(alpha, 0.0, 1, 0);
+    gsl_integration_qaws_table *t0 = gsl_integration_qaws_table_alloc(alpha, 0.0, 0, 0);
+    gsl_integration_workspace *w = gsl_integration_workspace_alloc(c->o->limit);
+    int rc = 0;
+    *ok = 1;
+    if (!t1 || !t0 || !w) {
+        rc = -1;
+        fail(c, SW_EINTERNAL, "QAWS tables not available");
+        goto done;
+    }
+    /* the scale of the result from the middle of the zone: for real parts
+       near zero a relative target alone would never be met */
+    double r[4], e[4];
+    double complex A, B;
+    if (log_eval(&lf, X / 2, &A, &B) != 0) {
+        rc = -1;
+        goto done;
+    }
+    double ap1 = alpha + 1;
+    double est = pow(X, ap1) * (cabs(A) * (fabs(log(X)) + 1 / ap1) / ap1 + cabs(B) / ap1);
+    double tol = target(c, tol_abs, est);
+    if (!(tol > 0))
+        tol = 1e-300;
+    for (int p = 0; p < 4; p++) {
+        q.part = p;
+        int s = gsl_integration_qaws(&gf, 0.0, X, p < 2 ? t1 : t0, tol / 4, 0, c->o->limit, w,
+                                     &r[p], &e[p]);
+        if (q.failed) {
+            rc = -1;
+            goto done;
+        }
+        if (s != GSL_SUCCESS)
+            *ok = 0;
+    }
+    *val = CMPLX(r[0] + r[2], r[1] + r[3]);
+    *abserr = e[0] + e[1] + e[2] + e[3];
+done:
+    free(q.tab);
+    if (t1)
+        gsl_integration_qaws_table_free(t1);
+    if (t0)
+        gsl_integration_qaws_table_free(t0);
+    if (w)
+        gsl_integration_workspace_free(w);
+    return rc;
+}
+
+/* ----------------------------------------------------------- tanh-sinh */
+
+/* int_0^X F dx for an end of unknown structure: tanh-sinh on [x_c, X]
+ * (values corrected to the nominal node with the local power law) plus the
+ * tail over [0, x_c] from the same law. */
+static int tanh_sinh_end(ictx *c, const zmap *m, const endinfo *ei, double X, double tol_abs,
+                         double complex *val, double *abserr, int *ok)
+{
+    double xc = TS_CUT * X;
+    if (!m->inf && m->base != 0)
+        xc = fmax(xc, 1e4 * EPS * cabs(m->base) / cabs(m->dir));
+    double complex alpha = ei->alpha;
+    double L = X - xc;
+    double complex T = 0, Tprev = 0;
+    double h = 0.5, asum = 0;
+    *ok = 0;
+    *abserr = INFINITY;
+    for (int level = 0; level < TS_LEVELS; level++, h /= 2) {
+        double complex S = 0;
+        long jmax = (long)ceil(TS_TMAX / h);
+        for (long j = -jmax; j <= jmax; j++) {
+            if (level > 0 && (j % 2) == 0)
+                continue; /* nodes of the previous levels */
+            double t = (double)j * h;
+            double v = PI / 2 * sinh(t) * 2;
+            double e = exp(-fabs(v)), phi, phc; /* phi and 1 - phi */
+            if (v >= 0) {
+                phi = 1 / (1 + e);
+                phc = e / (1 + e);
+            } else {
+                phi = e / (1 + e);
+                phc = 1 / (1 + e);
+            }
+            double wt = PI * cosh(t) * phi * phc * L;
+            double x = xc + L * phi;
+            if (!(wt > 0) || L * phc == 0)
+                continue;
+            double complex F, xh;
+            if (eval_F(c, m, x, &F, &xh) != 0)
+                return -1;
+            /* move the value from the point used to the node (power law) */
+            if (cabs(xh - x) > 0 && creal(xh) > 0)
+                F *= cpow(x / xh, alpha);
+            if (!finite_c(F))
+                continue;
+            S += wt * F;
+            asum += wt * cabs(F);
+        }
+        T = level == 0 ? h * S : Tprev / 2 + h * S;
+        if (level >= 3) {
+            double e = cabs(T - Tprev);
+            *abserr = e;
+            if (e <= target(c, tol_abs, cabs(T))) {
+                *ok = 1;
+                Tprev = T;
+                break;
+            }
+        }
+        Tprev = T;
+    }
+    /* tail from the power law, compared with the local slope at x_c */
+    double complex F1, F2, x1, x2;
+    if (eval_F(c, m, xc, &F1, &x1) != 0 || eval_F(c, m, 2 * xc, &F2, &x2) != 0)
+        return -1;
+    double complex tail = F1 * x1 / (alpha + 1);
+    double terr;
+    if (ei->exact && ei->kind == END_PURE) {
+        /* F = x^alpha H(x^(1/q)) with the exponent known: the law is off by
+           the variation of H over [0, x_c] */
+        terr = cabs(tail) * (8 * pow(xc / X, 1.0 / ei->q) + 1e3 * EPS);
+    } else {
+        double slope = log(cabs(F2) / cabs(F1)) / log(cabs(x2) / cabs(x1));
+        double complex tail2 = F1 * x1 / (slope + 1 + CMPLX(0.0, cimag(alpha)));
+        terr = cabs(tail - tail2) + 1e-3 * cabs(tail);
+    }
+    if (!finite_c(tail) || !isfinite(terr)) {
+        tail = 0;
+        terr = INFINITY;
+    }
+    *val = Tprev + tail;
+    *abserr += terr + 50 * EPS * asum * h;
+    if (*abserr > fmax(tol_abs, c->o->epsrel * cabs(*val)))
+        *ok = 0;
+    return 0;
+}
+
+/* ------------------------------------------------------ one singular end */
+
+static sw_status refuse_end(ictx *c, const zmap *m, const endinfo *ei, double complex z0)
+{
+    double complex a = ei->alpha;
+    char buf[SW_ERROR_MSG_MAX];
+    if (m->inf) {
+        double complex beta = -a - 2; /* F ~ s^a  <=>  f ~ z^(-a-2) */
+        snprintf(buf, sizeof buf,
+                 "the integrand decays only like |z|^(%.6g) along the ray to infinity (%s), "
+                 "not faster than 1/|z|: the integral over the ray diverges",
+                 creal(beta), ei->exact ? "exponent from continuation around infinity"
+                                        : "estimated exponent");
+    } else {
+        snprintf(buf, sizeof buf,
+                 "the integrand behaves like (z - z0)^(%.6g%+.6gi) at the end z0 = "
+                 "%.10g%+.10gi of the path (%s): not integrable (the exponent's real part is "
+                 "<= -1)",
+                 creal(a), cimag(a), creal(z0), cimag(z0),
+                 ei->exact ? "exponent from continuation" : "estimated exponent");
+    }
+    c->st = SW_EINPUT;
+    sw_error_set(&c->err, SW_EINPUT, "%s", buf);
+    return SW_EINPUT;
+}
+
+static int push_end(ictx *c, const zmap *m, const endinfo *ei, sw_end_rule rule)
+{
+    if (c->nends == c->aends) {
+        size_t na = c->aends ? 2 * c->aends : 4;
+        sw_integral_end *ne = realloc(c->ends, na * sizeof *ne);
+        if (ne == NULL)
+            return fail(c, SW_ENOMEM, "out of memory"), -1;
+        c->ends = ne;
+        c->aends = na;
+    }
+    sw_integral_end *e = &c->ends[c->nends++];
+    memset(e, 0, sizeof *e);
+    e->at_infinity = m->inf;
+    e->z = m->inf ? 0 : m->base;
+    /* finite: F = f dir, so f ~ (z - z0)^alpha;  infinity: f ~ z^(-alpha-2) */
+    e->exponent = m->inf ? -ei->alpha - 2 : ei->alpha;
+    e->ramification = ei->kind == END_PURE || ei->kind == END_LOG ? ei->q : 0;
+    e->logarithmic = ei->kind == END_LOG;
+    e->exact = ei->exact;
+    e->rule = rule;
+    return 0;
+}
+
+/* int_0^X F dx at the end x = 0 of M (analysed in EI), splitting towards the
+ * end when the rule does not converge on the whole zone. */
+static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int depth,
+                        double tol_abs, double complex *val, double *abserr, int *ok,
+                        sw_end_rule *rule)
+{
+    if (ei->kind == END_REGULAR) {
+        *rule = SW_RULE_NONE;
+        return qag_map(c, m, 0, X, tol_abs, val, abserr, ok);
+    }
+    if (ei->kind == END_LOG && creal(ei->alpha) > -1) {
+        *rule = SW_RULE_QAWS;
+        return qaws_log(c, m, ei, X, tol_abs, val, abserr, ok);
+    }
+    if (ei->kind == END_PURE && cimag(ei->alpha) == 0) {
+        *rule = SW_RULE_JACOBI;
+        double complex Iv;
+        double e;
+        int good;
+        if (gj_c(c, m, NULL, X, ei->q, creal(ei->alpha), 0, tol_abs, &Iv, &e, &good) != 0)
+            return -1;
+        if (good || depth >= SPLIT_DEPTH) {
+            *val = Iv;
+            *abserr = e;
+            *ok = good;
+            return 0;
+        }
+        /* the rest of H's analyticity region is smaller than X: shrink */
+        double complex v1, v2;
+        double e1, e2;
+        int ok1, ok2;
+        double tl = target(c, tol_abs, cabs(Iv)) / 2;
+        if (end_integral(c, m, ei, X / 4, depth + 1, tl, &v1, &e1, &ok1, rule) != 0 ||
+            qag_map(c, m, X / 4, X, tl, &v2, &e2, &ok2) != 0)
+            return -1;
+        *val = v1 + v2;
+        *abserr = e1 + e2;
+        *ok = ok1 && ok2;
+        *rule = SW_RULE_JACOBI;
+        return 0;
+    }
+    *rule = SW_RULE_TANH_SINH;
+    return tanh_sinh_end(c, m, ei, X, tol_abs, val, abserr, ok);
+}
+
+/* ------------------------------------------------------------ results */
+
+static int push_piece(ictx *c, sw_piece_kind kind, double complex from, double complex to,
+                      double complex val, double err, size_t evals, const char *method)
+{
+    if (c->npieces == c->apieces) {
+        size_t na = c->apieces ? 2 * c->apieces : 8;
+        sw_integral_piece *np = realloc(c->pieces, na * sizeof *np);
+        if (np == NULL)
+            return fail(c, SW_ENOMEM, "out of memory"), -1;
+        c->pieces = np;
+        c->apieces = na;
+    }
+    sw_integral_piece *p = &c->pieces[c->npieces++];
+    p->kind = kind;
+    p->from = from;
+    p->to = to;
+    p->value = val;
+    p->abserr = err;
+    p->evaluations = evals;
+    p->method = method;
+    return 0;
+}
+
+static const char *rule_method(sw_end_rule r)
+{
+    switch (r) {
+    case SW_RULE_JACOBI: return "gauss-jacobi";
+    case SW_RULE_QAWS: return "qaws";
+    case SW_RULE_TANH_SINH: return "tanh-sinh";
+    default: return "gauss-kronrod";
+    }
+}
+
+/* ------------------------------------------------------------- pieces */
+
+typedef struct station {
+    double complex z;
+    int bank, sing, inf;
+    long vertex;            /* index of the path vertex, -1 for added stations */
+    double L;               /* infinity: length scale of the ray */
+    double complex dir;     /* infinity: unit direction of the ray, outwards */
+} station;
+
+typedef struct piece {
+    sw_piece_kind kind;
+    double complex a, b;   /* segment: ends; ray: a = finite end, b = unit direction out */
+    int sing_a, sing_b;    /* singular finite ends */
+    double L;              /* ray: length scale */
+    size_t line0, nline;   /* tracked lines of this piece */
+    /* circle */
+    double complex centre;
+    double radius, theta0;
+    int orient, ncircle;
+} piece;
+
+/* A finite segment. */
+static int integrate_segment(ictx *c, const piece *pc, int *all_ok, double *tol_share)
+{
+    size_t ev0 = c->evals;
+    zmap ma = {0, pc->a, pc->b - pc->a, pc->line0, pc->nline};
+    zmap mb = {0, pc->b, pc->a - pc->b, pc->line0, pc->nline};
+    double complex val = 0;
+    double err = 0;
+    int ok = 1;
+    const char *method = "gauss-kronrod";
+    endinfo ea, eb;
+    memset(&ea, 0, sizeof ea);
+    memset(&eb, 0, sizeof eb);
+    int rc = -1;
+    double tol = *tol_share;
+    if (!pc->sing_a && !pc->sing_b) {
+        if (qag_map(c, &ma, 0, 1, tol, &val, &err, &ok) != 0)
+            goto done;
+    } else {
+        double X0 = pc->sing_a && pc->sing_b ? 0.5 : 1.0;
+        if (pc->sing_a && analyze_end(c, &ma, X0, &ea) != 0)
+            goto done;
+        if (pc->sing_b && analyze_end(c, &mb, X0, &eb) != 0)
+            goto done;
+        if (pc->sing_a && ea.kind != END_REGULAR && !(creal(ea.alpha) > -1)) {
+            refuse_end(c, &ma, &ea, pc->a);
+            goto done;
+        }
+        if (pc->sing_b && eb.kind != END_REGULAR && !(creal(eb.alpha) > -1)) {
+            refuse_end(c, &mb, &eb, pc->b);
+            goto done;
+        }
+        sw_end_rule ra = SW_RULE_NONE, rb = SW_RULE_NONE;
+        int done2 = 0;
+        if (pc->sing_a && pc->sing_b && ea.kind == END_PURE && eb.kind == END_PURE &&
+            ea.q == 1 && eb.q == 1 && cimag(ea.alpha) == 0 && cimag(eb.alpha) == 0) {
+            /* both ends at once: weight x^alpha (1 - x)^beta on the whole segment */
+            double complex Iv;
+            double e;
+            int good;
+            if (gj_c(c, &ma, &mb, 1.0, 1, creal(ea.alpha), creal(eb.alpha), tol, &Iv, &e,
+                     &good) != 0)
+                goto done;
+            if (good) {
+                val = Iv;
+                err = e;
+                ra = rb = SW_RULE_JACOBI;
+                done2 = 1;
+                method = "gauss-jacobi";
+            }
+        }
+        if (!done2) {
+            double complex v1 = 0, v2 = 0;
+            double e1 = 0, e2 = 0;
+            int ok1 = 1, ok2 = 1;
+            if (pc->sing_a && pc->sing_b) {
+                if (end_integral(c, &ma, &ea, 0.5, 0, tol / 2, &v1, &e1, &ok1, &ra) != 0 ||
+                    end_integral(c, &mb, &eb, 0.5, 0, tol / 2, &v2, &e2, &ok2, &rb) != 0)
+                    goto done;
+                val = v1 - v2; /* mb runs backwards: int_a^b = -int over mb */
+            } else if (pc->sing_a) {
+                if (end_integral(c, &ma, &ea, 1.0, 0, tol, &v1, &e1, &ok1, &ra) != 0)
+                    goto done;
+                val = v1;
+            } else {
+                if (end_integral(c, &mb, &eb, 1.0, 0, tol, &v2, &e2, &ok2, &rb) != 0)
+                    goto done;
+                val = -v2;
+            }
+            err = e1 + e2;
+            ok = ok1 && ok2;
+            method = rule_method(pc->sing_a ? ra : rb);
+        }
+        if (pc->sing_a && push_end(c, &ma, &ea, ra) != 0)
+            goto done;
+        if (pc->sing_b && push_end(c, &mb, &eb, rb) != 0)
+            goto done;
+    }
+    if (push_piece(c, SW_PIECE_SEGMENT, pc->a, pc->b, val, err, c->evals - ev0, method) != 0)
+        goto done;
+    *all_ok &= ok;
+    rc = 0;
+done:
+    endinfo_clear(&ea);
+    endinfo_clear(&eb);
+    return rc;
+}
+
+/* A ray: s in (0, 1], z = c + e / s with c = a - b L, e = b L (s = 1 at a). */
+static int integrate_ray(ictx *c, const piece *pc, int *all_ok, double *tol_share)
+{
+    size_t ev0 = c->evals;
+    zmap m = {1, pc->a - pc->b * pc->L, pc->b * pc->L, pc->line0, pc->nline};
+    endinfo ei;
+    double complex val = 0;
+    double err = 0;
+    int ok = 1, rc = -1;
+    sw_end_rule rule = SW_RULE_NONE;
+    if (analyze_end(c, &m, 1.0, &ei) != 0)
+        goto done;
+    if (ei.kind != END_REGULAR && !(creal(ei.alpha) > -1)) {
+        refuse_end(c, &m, &ei, 0);
+        goto done;
+    }
+    if (end_integral(c, &m, &ei, 1.0, 0, *tol_share, &val, &err, &ok, &rule) != 0)
+        goto done;
+    if (push_end(c, &m, &ei, rule) != 0)
+        goto done;
+    /* int over s in [0,1] of F ds with F = f dz/ds runs from infinity (s=0)
+       to a (s=1): outward rays take the opposite sign */
+    if (pc->kind == SW_PIECE_RAY_OUT)
+        val = -val;
+    if (push_piece(c, pc->kind, pc->a, pc->a, val, err, c->evals - ev0, rule_method(rule)) != 0)
+        goto done;
+    *all_ok &= ok;
+    rc = 0;
+done:
+    endinfo_clear(&ei);
+    return rc;
+}
+
+/* ------------------------------------------------------------ circles */
+
+/* Walk G straight to Z in as many equal steps as the engine needs. */
+static int nudge(ictx *c, sw_germ *g, double complex z)
+{
+    double complex a = g->z;
+    for (int pieces = 1; pieces <= 1 << 12; pieces *= 2) {
+        sw_germ_copy(&c->h, g);
+        int good = 1;
+        for (int k = 1; k <= pieces && good; k++) {
+            double complex t = k == pieces ? z : a + (z - a) * ((double)k / pieces);
+            good = sw_func_advance(&c->k, &c->h, t, c->f, &c->o->track.step, NULL) == SW_STEP_OK;
+            if (good)
+                sw_germ_copy(&c->h, &c->k);
+        }
+        if (good) {
+            sw_germ_copy(g, &c->h);
+            return 0;
+        }
+    }
+    return -1;
+}
+
+typedef struct circfn {
+    ictx *c;
+    const piece *pc;
+} circfn;
+
+/* F(tau) = R(z, w) dz/dtau on the circle z = C + R exp(i (theta0 + orient tau)). */
+static int circle_eval(void *arg, double tau, double complex *v, double complex *aux)
+{
+    circfn *a = arg;
+    ictx *c = a->c;
+    const piece *pc = a->pc;
+    const tline *l = &c->lines[pc->line0];
+    (void)aux;
+    double frac = tau / (2 * PI);
+    double t = frac * pc->ncircle;
+    sw_error e;
+    if (sw_trace_germ_at(&c->g, &l->tr, c->f, t, &l->path, &e) != SW_OK)
+        return fail(c, e.code, e.msg), -1;
+    double th = pc->theta0 + pc->orient * tau;
+    double complex z = pc->centre + pc->radius * CMPLX(cos(th), sin(th));
+    if (tau == 0 || tau == 2 * PI)
+        z = l->p;
+    if (nudge(c, &c->g, z) != 0)
+        return fail(c, SW_ESINGULAR, "cannot reach a point of the circle from the polygon "
+                                     "(a singular point lies between them)"), -1;
+    double complex w = sw_func_value(c->f, &c->g);
+    *v = integrand_at(c, c->g.z, w) * CMPLX(0.0, (double)pc->orient) * (c->g.z - pc->centre);
+    c->evals++;
+    return 0;
+}
+
+static int integrate_circle(ictx *c, const piece *pc, int *all_ok, double *tol_share)
+{
+    size_t ev0 = c->evals;
+    circfn cf = {c, pc};
+    const tline *l = &c->lines[pc->line0];
+    double complex F0, F1;
+    int rc = -1, ok = 1;
+    double complex val = 0;
+    double err = 0;
+    const char *method = "trapezoid";
+    /* periodic when the integrand comes back to its start value (at two points) */
+    double complex w0 = sw_func_value(c->f, &l->tr.vert[0]);
+    double complex w1 = sw_func_value(c->f, &l->tr.vert[l->tr.nvert - 1]);
+    double complex r0 = integrand_at(c, l->p, w0), r1 = integrand_at(c, l->p, w1);
+    c->evals += 2;
+    int periodic = cabs(r1 - r0) <= 1e-10 * fmax(cabs(r0), 1e-300);
+    if (periodic) {
+        /* a second point: the end germ carried a little further */
+        double dth = 2 * PI / pc->ncircle;
+        double complex zz = pc->centre + pc->radius * CMPLX(cos(pc->theta0 + pc->orient * dth),
+                                                            sin(pc->theta0 + pc->orient * dth));
+        sw_germ_copy(&c->g, &l->tr.vert[l->tr.nvert - 1]);
+        if (nudge(c, &c->g, zz) == 0) {
+            double complex wa = sw_func_value(c->f, &c->g);
+            F1 = integrand_at(c, c->g.z, wa);
+            if (circle_eval(&cf, dth, &F0, NULL) != 0)
+                goto done;
+            double complex Fb = F0 / (CMPLX(0.0, (double)pc->orient) * (c->g.z - pc->centre));
+            periodic = cabs(F1 - Fb) <= 1e-8 * fmax(cabs(Fb), 1e-300);
+        } else {
+            periodic = 0;
+        }
+    }
+    if (periodic) {
+        /* trapezoidal rule, doubling the nodes until two sums agree */
+        double complex T = 0, S = 0;
+        size_t M = 16;
+        for (size_t j = 0; j < M; j++) {
+            double complex v;
+            if (circle_eval(&cf, 2 * PI * (double)j / (double)M, &v, NULL) != 0)
+                goto done;
+            S += v;
+        }
+        T = S * (2 * PI / (double)M);
+        ok = 0;
+        for (; M <= (1u << 18); M *= 2) {
+            double complex Sn = 0;
+            for (size_t j = 0; j < M; j++) {
+                double complex v;
+                if (circle_eval(&cf, 2 * PI * (2 * (double)j + 1) / (2 * (double)M), &v, NULL) !=
+                    0)
+                    goto done;
+                Sn += v;
+            }
+            S += Sn;
+            double complex T2 = S * (2 * PI / (2 * (double)M));
+            double asc = 0;
+            err = cabs(T2 - T) + 50 * EPS * cabs(T2) + 50 * EPS * asc;
+            T = T2;
+            if (err <= target(c, *tol_share, cabs(T)) && M >= 32) {
+                ok = 1;
+                break;
+            }
+        }
+        val = T;
+    } else {
+        method = "gauss-kronrod";
+        if (qag_c(c, circle_eval, &cf, 0, 2 * PI, *tol_share, &val, &err, &ok) != 0)
+            goto done;
+    }
+    if (push_piece(c, SW_PIECE_CIRCLE, pc->centre, pc->radius, val, err, c->evals - ev0,
+                   method) != 0)
+        goto done;
+    *all_ok &= ok;
+    rc = 0;
+done:
+    return rc;
+}
+
+/* ------------------------------------------------------------ the driver */
+
+static int add_line(ictx *c, const double complex *z, const int *bank, size_t n, int eval,
+                    double min_step)
+{
+    if (c->nlines == c->alloc) {
+        size_t na = c->alloc ? 2 * c->alloc : 16;
+        tline *nl = realloc(c->lines, na * sizeof *nl);
+        if (nl == NULL)
+            return fail(c, SW_ENOMEM, "out of memory"), -1;
+        c->lines = nl;
+        c->alloc = na;
+    }
+    tline *l = &c->lines[c->nlines];
+    sw_path_init(&l->path);
+    sw_trace_init(&l->tr);
+    l->eval = eval;
+    l->min_step = min_step;
+    l->p = z[0];
+    l->q = z[n - 1];
+    c->nlines++;
+    sw_error e;
+    for (size_t k = 0; k < n; k++)
+        if (sw_path_push(&l->path, z[k], bank ? bank[k] : SW_BANK_NONE, &e) != SW_OK)
+            return fail(c, e.code, e.msg), -1;
+    return 0;
+}
+
+/* Is the finite point Z singular for the integrand (a branch point, an
+ * operand zero or pole, colliding sheets, a pole of R)? */
+static int point_singular(ictx *c, double complex z, int bank)
+{
+    sw_error e;
+    if (sw_func_germ_at(&c->g, c->f, z, bank, NULL, &e) != SW_OK)
+        return 1;
+    double complex w = sw_func_value(c->f, &c->g);
+    if (!finite_c(w) || !finite_c(integrand_at(c, z, w)))
+        return 1;
+    size_t n = sw_func_degree(c->f);
+    if (n > 1) {
+        double complex *v = malloc(n * sizeof *v);
+        if (v == NULL)
+            return 1;
+        size_t got = sw_func_sheet_values(v, n, c->f, &c->g);
+        double big = 0;
+        for (size_t i = 0; i < got; i++)
+            big = fmax(big, cabs(v[i]));
+        int sing = 0;
+        for (size_t i = 0; i < got && !sing; i++) {
+            if (!finite_c(v[i]) || !finite_c(integrand_at(c, z, v[i])))
+                sing = 1;
+            for (size_t j = i + 1; j < got && !sing; j++)
+                if (cabs(v[i] - v[j]) <= COLLIDE * (1 + big))
+                    sing = 1;
+        }
+        free(v);
+        return sing;
+    }
+    return 0;
+}
+
+static int sheet_label(const sw_func *f, const sw_germ *g)
+{
+    if (sw_func_kind_of(f) != SW_FUNC_CURVE)
+        return 0;
+    sw_germ h;
+    sw_error e;
+    int lab = 0;
+    double complex w = sw_func_value(f, g);
+    if (sw_germ_init(&h, f) == SW_OK && sw_func_germ_at(&h, f, g->z, SW_BANK_NONE, &w, &e) ==
+                                            SW_OK)
+        lab = h.sheet + 1;
+    sw_germ_clear(&h);
+    return lab;
+}
+
+/* Is the closed path a regular polygon from "circle C R N" (N >= 16)? */
+static int circle_of(const sw_path *p, double complex *centre, double *radius, double *theta0,
+                     int *orient)
+{
+    if (!sw_path_is_closed(p) || p->n < 17)
+        return 0;
+    size_t N = p->n - 1;
+    double complex C = 0;
+    for (size_t k = 0; k < N; k++) {
+        if (p->bank[k] != SW_BANK_NONE)
+            return 0;
+        C += p->z[k];
+    }
+    C /= (double)N;
+    double R = cabs(p->z[0] - C);
+    if (!(R > 0))
+        return 0;
+    double step = 0;
+    for (size_t k = 0; k < N; k++) {
+        if (fabs(cabs(p->z[k] - C) - R) > 1e-9 * R)
+            return 0;
+        double d = carg((p->z[k + 1] - C) / (p->z[k] - C));
+        if (k == 0)
+            step = d;
+        else if (fabs(d - step) > 1e-9)
+            return 0;
+    }
+    if (fabs(fabs(step) * (double)N - 2 * PI) > 1e-8)
+        return 0;
+    *centre = C;
+    *radius = R;
+    *theta0 = carg(p->z[0] - C);
+    *orient = step > 0 ? 1 : -1;
+    return 1;
+}
+
+static sw_status track_lines(ictx *c, sw_germ *g, size_t from, size_t to, int keep,
+                             sw_error *err)
+{
+    for (size_t k = from; k < to; k++) {
+        tline *l = &c->lines[k];
+        sw_track_opts o = c->o->track;
+        o.keep_log = keep;
+        o.min_step = fmin(o.min_step, l->min_step);
+        sw_status st = sw_track_run(&l->tr, c->f, g, &l->path, &o, err);
+        if (st != SW_OK)
+            return st;
+        c->steps += l->tr.steps;
+        sw_germ_copy(g, &l->tr.vert[l->tr.nvert - 1]);
+    }
+    return SW_OK;
+}
+
+static sw_status track_back(ictx *c, sw_germ *g, size_t upto, sw_error *err)
+{
+    for (size_t k = upto; k-- > 0;) {
+        sw_path rp;
+        sw_path_init(&rp);
+        sw_status st = sw_path_copy(&rp, &c->lines[k].path, err);
+        if (st != SW_OK)
+            return st;
+        sw_path_reverse(&rp);
+        sw_trace tr;
+        sw_trace_init(&tr);
+        sw_track_opts o = c->o->track;
+        o.keep_log = 0;
+        o.min_step = fmin(o.min_step, c->lines[k].min_step);
+        st = sw_track_run(&tr, c->f, g, &rp, &o, err);
+        if (st == SW_OK) {
+            c->steps += tr.steps;
+            sw_germ_copy(g, &tr.vert[tr.nvert - 1]);
+        }
+        sw_trace_clear(&tr);
+        sw_path_clear(&rp);
+        if (st != SW_OK)
+            return st;
+    }
+    return SW_OK;
+}
+
+sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *integrand,
+                            const sw_path *path, size_t vertex, const double complex *w,
+                            const sw_integrate_opts *opts, sw_error *err)
+{
+    sw_integrate_opts defo;
+    if (opts == NULL) {
+        sw_integrate_opts_init(&defo);
+        opts = &defo;
+    }
+    ictx c;
+    memset(&c, 0, sizeof c);
+    c.f = f;
+    c.R = integrand;
+    c.o = opts;
+    c.expr = sw_func_kind_of(f) == SW_FUNC_EXPR;
+    c.nmv = c.expr ? sw_expr_mv_count(sw_func_expr(f)) : 0;
+    piece *pcs = NULL;
+    station *stations = NULL;
+    int *sing = NULL;
+    size_t npc = 0, nst = 0;
+    sw_germ g0;
+    int have_g0 = 0;
+    sw_status st = SW_OK;
+    const size_t n = path->n;
+    if (!(opts->epsrel >= 0) || !(opts->epsabs >= 0) || !(opts->epsrel > 0 || opts->epsabs > 0))
+        return sw_error_set(err, SW_EUSAGE, "tolerances must be >= 0 and not both 0");
+    if (n < 2)
+        return sw_error_set(err, SW_EINPUT, "the path needs at least two finite vertices");
+    if (vertex >= n)
+        return sw_error_set(err, SW_EUSAGE, "vertex %zu is not a finite vertex of the path",
+                            vertex + 1);
+    if (sw_germ_init(&c.g, f) != SW_OK || sw_germ_init(&c.h, f) != SW_OK ||
+        sw_germ_init(&c.k, f) != SW_OK || sw_germ_init(&g0, f) != SW_OK) {
+        sw_germ_clear(&c.g);
+        sw_germ_clear(&c.h);
+        sw_germ_clear(&c.k);
+        return sw_error_set(err, SW_ENOMEM, "out of memory");
+    }
+    have_g0 = 1;
+    c.scale = sw_path_scale(path);
+    const double S = c.scale;
+    pcs = calloc(n + 4, sizeof *pcs);
+    sing = calloc(n, sizeof *sing);
+    if (pcs == NULL || sing == NULL) {
+        st = sw_error_set(err, SW_ENOMEM, "out of memory");
+        goto cleanup;
+    }
+    double complex centre = 0;
+    double radius = 0, theta0 = 0;
+    int orient = 1;
+    int is_circle = opts->circle && circle_of(path, &centre, &radius, &theta0, &orient);
+    double complex fixz = 0;
+    int fixbank = SW_BANK_NONE;
+    size_t fixline = 0; /* the branch is fixed at the start of this line (== nlines: end) */
+
+    if (is_circle) {
+        /* track a fine polygon of the same circle; the user's polygon decides
+           the branch at the end, and the two must agree */
+        size_t N = path->n - 1, Nt = N * 4 < 256 ? 256 : N * 4;
+        double complex *zz = malloc((Nt + 1) * sizeof *zz);
+        if (zz == NULL) {
+            st = sw_error_set(err, SW_ENOMEM, "out of memory");
+            goto cleanup;
+        }
+        for (size_t k = 0; k <= Nt; k++) {
+            double th = theta0 + orient * 2 * PI * (double)k / (double)Nt;
+            zz[k] = (k == 0 || k == Nt) ? path->z[0] : centre + radius * CMPLX(cos(th), sin(th));
+        }
+        int r = add_line(&c, zz, NULL, Nt + 1, 1, opts->track.min_step);
+        free(zz);
+        if (r != 0)
+            goto fail_ctx;
+        pcs[0].kind = SW_PIECE_CIRCLE;
+        pcs[0].centre = centre;
+        pcs[0].radius = radius;
+        pcs[0].theta0 = theta0;
+        pcs[0].orient = orient;
+        pcs[0].ncircle = (int)Nt;
+        pcs[0].line0 = 0;
+        pcs[0].nline = 1;
+        npc = 1;
+        sw_track_opts to = opts->track;
+        st = sw_track_start_germ(&g0, f, path, vertex, w, &to, err);
+        if (st != SW_OK)
+            goto cleanup;
+        sw_germ gp;
+        if (sw_germ_init(&gp, f) != SW_OK) {
+            st = sw_error_set(err, SW_ENOMEM, "out of memory");
+            goto cleanup;
+        }
+        sw_germ_copy(&gp, &g0);
+        sw_trace ptr;
+        sw_trace_init(&ptr);
+        to.keep_log = 0;
+        st = sw_track_run(&ptr, f, &gp, path, &to, err);
+        double complex wpoly = st == SW_OK ? sw_func_value(f, &ptr.vert[ptr.nvert - 1]) : 0;
+        if (st == SW_OK)
+            c.steps += ptr.steps;
+        sw_trace_clear(&ptr);
+        if (st == SW_OK)
+            st = track_lines(&c, &gp, 0, 1, 1, err);
+        double complex wfine = sw_func_value(f, &gp);
+        sw_germ_clear(&gp);
+        if (st != SW_OK)
+            goto cleanup;
+        if (cabs(wfine - wpoly) > 1e-8 * fmax(cabs(wpoly), 1e-300)) {
+            /* a singular point between polygon and circle: integrate the polygon */
+            sw_path_clear(&c.lines[0].path);
+            sw_trace_clear(&c.lines[0].tr);
+            c.nlines = 0;
+            is_circle = 0;
+            npc = 0;
+        }
+    }
+
+    if (!is_circle) {
+        /* stations: the points the pieces run between, in path order (an
+           artificial station splits a ray off a singular finite vertex) */
+        for (size_t k = 0; k < n; k++)
+            sing[k] = point_singular(&c, path->z[k], path->bank[k]);
+        nst = 0;
+        stations = calloc(n + 4, sizeof *stations);
+        if (stations == NULL) {
+            st = sw_error_set(err, SW_ENOMEM, "out of memory");
+            goto cleanup;
+        }
+        if (path->inf_start) {
+            double complex d = path->z[0] - path->z[1];
+            double L = fmax(cabs(d), cabs(path->z[0]));
+            stations[nst++] = (station){0, SW_BANK_NONE, 0, 1, -1, L, d / cabs(d)};
+            if (sing[0])
+                stations[nst++] = (station){path->z[0] + d / cabs(d) * L, SW_BANK_NONE, 0, 0,
+                                            -1, 0, 0};
+        }
+        for (size_t k = 0; k < n; k++)
+            stations[nst++] = (station){path->z[k], path->bank[k], sing[k], 0, (long)k, 0, 0};
+        if (path->inf_end) {
+            double complex d = path->z[n - 1] - path->z[n - 2];
+            double L = fmax(cabs(d), cabs(path->z[n - 1]));
+            if (sing[n - 1])
+                stations[nst++] = (station){path->z[n - 1] + d / cabs(d) * L, SW_BANK_NONE, 0,
+                                            0, -1, 0, 0};
+            stations[nst++] = (station){0, SW_BANK_NONE, 0, 1, -1, L, d / cabs(d)};
+        }
+        for (size_t i = 1; i + 1 < nst; i++)
+            if (stations[i].sing && stations[i].bank == SW_BANK_NONE) {
+                st = sw_error_set(err, SW_ESINGULAR,
+                                  "the path passes through a singular point (branch point, "
+                                  "pole or zero of an operand) at z = %.10g%+.10gi: the branch "
+                                  "beyond it is not determined; mark the side with a bank mark "
+                                  "(e.g. '%.6g+i0') or end the path there",
+                                  creal(stations[i].z), cimag(stations[i].z),
+                                  creal(stations[i].z));
+                goto cleanup;
+            }
+        if (sing[vertex] && !(stations[0].vertex == (long)vertex ||
+                              stations[nst - 1].vertex == (long)vertex)) {
+            st = sw_error_set(err, SW_EUSAGE,
+                              "the branch cannot be fixed at vertex %zu: it is a singular "
+                              "point inside the path; fix it at another vertex", vertex + 1);
+            goto cleanup;
+        }
+        /* pieces and their tracked lines, in path order */
+        double inset = SW_INTEGRATE_INSET * S, bridge = BRIDGE_INSET * S;
+        double fine = 1e-15; /* tracker floor next to singular ends (relative) */
+        for (size_t i = 0; i + 1 < nst; i++) {
+            const station *sa = &stations[i], *sb = &stations[i + 1];
+            piece *p = &pcs[npc];
+            if (sa->inf || sb->inf) {
+                const station *fin = sa->inf ? sb : sa, *inf = sa->inf ? sa : sb;
+                p->kind = sa->inf ? SW_PIECE_RAY_IN : SW_PIECE_RAY_OUT;
+                p->a = fin->z;
+                p->b = inf->dir;
+                p->L = inf->L;
+                double umax = p->L * (1 / RAY_DEPTH - 1);
+                double us[80];
+                size_t nu = 0;
+                us[nu++] = 0;
+                for (double u = p->L; u < umax && nu < 70; u *= RAY_CHUNK)
+                    us[nu++] = u;
+                us[nu++] = umax;
+                p->line0 = c.nlines;
+                for (size_t k = 0; k + 1 < nu; k++) {
+                    size_t j = sa->inf ? nu - 1 - k : k;
+                    double complex zz[2] = {p->a + p->b * us[j],
+                                            p->a + p->b * us[sa->inf ? j - 1 : j + 1]};
+                    if (add_line(&c, zz, NULL, 2, 1, opts->track.min_step) != 0)
+                        goto fail_ctx;
+                }
+                p->nline = c.nlines - p->line0;
+                npc++;
+                continue;
+            }
+            double complex a = sa->z, b = sb->z;
+            if (a == b)
+                continue;
+            p->kind = SW_PIECE_SEGMENT;
+            p->a = a;
+            p->b = b;
+            p->sing_a = sa->sing;
+            p->sing_b = sb->sing;
+            double complex u = (b - a) / cabs(b - a);
+            double ia = !sa->sing ? 0 : (i == 0 ? inset : bridge);
+            double ib = !sb->sing ? 0 : (i + 2 == nst ? inset : bridge);
+            if (ia + ib >= 0.5 * cabs(b - a)) {
+                st = sw_error_set(err, SW_EINPUT,
+                                  "a segment of length %.3g next to a singular point is too "
+                                  "short for the path's scale %.3g", cabs(b - a), S);
+                goto cleanup;
+            }
+            double complex zz[2] = {a + u * ia, b - u * ib};
+            int bk[2] = {sa->bank, sb->bank};
+            if (i > 0 && sa->sing && c.nlines > 0) {
+                /* carry the branch past the marked singular point on a small
+                   detour on the marked side */
+                double complex bz[3] = {c.lines[c.nlines - 1].q,
+                                        a + CMPLX(0.0, (double)sa->bank * ia), zz[0]};
+                if (add_line(&c, bz, NULL, 3, 0, fine) != 0)
+                    goto fail_ctx;
+            }
+            p->line0 = c.nlines;
+            if (add_line(&c, zz, bk, 2, 1, (ia > 0 || ib > 0) ? fine : opts->track.min_step) !=
+                0)
+                goto fail_ctx;
+            p->nline = 1;
+            npc++;
+        }
+        if (c.nlines == 0) {
+            st = sw_error_set(err, SW_EINPUT, "the path has no segment of positive length");
+            goto cleanup;
+        }
+        /* where the branch is fixed */
+        if (!sing[vertex]) {
+            fixz = path->z[vertex];
+            fixbank = path->bank[vertex];
+        } else if (stations[0].vertex == (long)vertex) {
+            fixz = c.lines[0].p;
+            fixbank = path->bank[vertex];
+        } else {
+            fixz = c.lines[c.nlines - 1].q;
+            fixbank = path->bank[vertex];
+        }
+        fixline = c.nlines;
+        for (size_t k = 0; k < c.nlines; k++)
+            if (c.lines[k].p == fixz) {
+                fixline = k;
+                break;
+            }
+        if (fixline == c.nlines && c.lines[c.nlines - 1].q != fixz) {
+            st = sw_error_set(err, SW_EINTERNAL, "the fixing point is not on a tracked line");
+            goto cleanup;
+        }
+        st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
+        if (st != SW_OK) {
+            sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixz),
+                            cimag(fixz));
+            goto cleanup;
+        }
+        g0.z = fixz;
+        st = track_back(&c, &g0, fixline, err);
+        if (st != SW_OK)
+            goto cleanup;
+        sw_germ gg;
+        if (sw_germ_init(&gg, f) != SW_OK) {
+            st = sw_error_set(err, SW_ENOMEM, "out of memory");
+            goto cleanup;
+        }
+        sw_germ_copy(&gg, &g0);
+        st = track_lines(&c, &gg, 0, c.nlines, 1, err);
+        sw_germ_clear(&gg);
+        if (st != SW_OK)
+            goto cleanup;
+    }
+
+    /* integrate every piece */
+    int all_ok = 1;
+    double tol_share = opts->epsabs / (double)(npc ? npc : 1) * opts->aim;
+    for (size_t k = 0; k < npc; k++) {
+        int r;
+        if (pcs[k].kind == SW_PIECE_SEGMENT)
+            r = integrate_segment(&c, &pcs[k], &all_ok, &tol_share);
+        else if (pcs[k].kind == SW_PIECE_CIRCLE)
+            r = integrate_circle(&c, &pcs[k], &all_ok, &tol_share);
+        else
+            r = integrate_ray(&c, &pcs[k], &all_ok, &tol_share);
+        if (r != 0)
+            goto fail_ctx;
+    }
+    {
+        sw_integral res;
+        sw_integral_init(&res);
+        double complex v = 0;
+        double e = 0;
+        for (size_t k = 0; k < c.npieces; k++) {
+            v += c.pieces[k].value;
+            e += c.pieces[k].abserr;
+        }
+        res.value = v;
+        res.abserr = e;
+        res.evaluations = c.evals;
+        res.steps = c.steps;
+        res.converged = all_ok && e <= fmax(opts->epsabs, opts->epsrel * cabs(v));
+        res.certified = 0;
+        res.npieces = c.npieces;
+        res.piece = c.pieces;
+        res.nends = c.nends;
+        res.end = c.ends;
+        c.pieces = NULL;
+        c.ends = NULL;
+        const tline *l0 = &c.lines[0], *l1 = &c.lines[c.nlines - 1];
+        res.start_z = l0->tr.vert[0].z;
+        res.start_w = sw_func_value(f, &l0->tr.vert[0]);
+        res.end_z = l1->tr.vert[l1->tr.nvert - 1].z;
+        res.end_w = sw_func_value(f, &l1->tr.vert[l1->tr.nvert - 1]);
+        if (path->inf_start)
+            res.start_w = CMPLX(NAN, NAN);
+        if (path->inf_end)
+            res.end_w = CMPLX(NAN, NAN);
+        res.closed = sw_path_is_closed(path);
+        res.start_sheet = sheet_label(f, &l0->tr.vert[0]);
+        res.end_sheet = sheet_label(f, &l1->tr.vert[l1->tr.nvert - 1]);
+        sw_integral_clear(out);
+        *out = res;
+        if (!res.converged)
+            st = sw_error_set(err, SW_ETOLERANCE,
+                              "the integral did not reach the tolerance: estimated error %.3g "
+                              "for |value| %.3g (requested %.3g relative)", e, cabs(v),
+                              opts->epsrel);
+    }
+    goto cleanup;
+fail_ctx:
+    if (c.st == SW_OK)
+        c.st = sw_error_set(&c.err, SW_EINTERNAL, "integration failed");
+    st = c.st;
+    if (err)
+        *err = c.err;
+cleanup:
+    for (size_t k = 0; k < c.nlines; k++) {
+        sw_path_clear(&c.lines[k].path);
+        sw_trace_clear(&c.lines[k].tr);
+    }
+    free(c.lines);
+    free(c.pieces);
+    free(c.ends);
+    free(pcs);
+    free(stations);
+    free(sing);
+    sw_germ_clear(&c.g);
+    sw_germ_clear(&c.h);
+    sw_germ_clear(&c.k);
+    if (have_g0)
+        sw_germ_clear(&g0);
+    return st;
+}
