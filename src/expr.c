@@ -260,6 +260,10 @@ static int fold(parser *P, int idx)
     default: v = apply1(nd->kind, x); break;
     }
     int c0 = nd->col0, c1 = nd->col1;
+    /* a constant with zero imaginary part is a real number: +0, as a C real
+       constant converted to complex would be (so sqrt(-4) folds to +2i) */
+    if (cimag(v) == 0)
+        v = CMPLX(creal(v), 0.0);
     if (!finite_c(v)) {
         char span[96];
         int len = c1 - c0 < 80 ? c1 - c0 : 80;
@@ -380,6 +384,7 @@ static int parse_primary(parser *P)
                 if (s[P->pos] != ',')
                     return fail(P, SW_EPARSE, "root(x, n) needs two arguments%s", "", P->pos);
                 P->pos++;
+                skip_ws(P);
                 size_t pn = P->pos;
                 int b = parse_expr(P);
                 if (b < 0)
@@ -769,7 +774,16 @@ int sw_expr_eval_step(double complex *value, double complex *new_state, const sw
                accumulate along the path */
             double im = cimag(old_state[2 * m + 1]) + atan2(cimag(r), creal(r));
             double arg = atan2(ui, ur);
-            double re = tame(a2) ? 0.5 * log(a2) : log(cabs(u));
+            double re;
+            if (a2 > 0.5 && a2 < 2) {
+                /* near |u| = 1: log|u| = log1p(|u|^2 - 1) / 2 with the
+                   difference formed without cancellation */
+                double big = fabs(ur) > fabs(ui) ? fabs(ur) : fabs(ui);
+                double small = fabs(ur) > fabs(ui) ? fabs(ui) : fabs(ur);
+                re = 0.5 * log1p((big - 1) * (big + 1) + small * small);
+            } else {
+                re = tame(a2) ? 0.5 * log(a2) : log(cabs(u));
+            }
             double k2 = nearbyint((im - arg) / (2 * PI));
             double complex L = CMPLX(re, arg + 2 * PI * k2);
             new_state[2 * m] = u;

@@ -107,7 +107,7 @@ sw_status sw_path_parse(sw_path *out, const char *text, const char *origin,
     if (buf == NULL)
         return sw_error_set(err, SW_ENOMEM, "out of memory");
     int inf_seen_last = 0;
-    size_t lineno = 0;
+    size_t lineno = 0, inf_line = 0;
     char *save = buf;
     const char *what = origin ? origin : "path";
     int is_file = origin && strcmp(origin, "path") != 0;
@@ -138,7 +138,7 @@ sw_status sw_path_parse(sw_path *out, const char *text, const char *origin,
         if (inf_seen_last) {
             st = sw_error_set(err, SW_EINPUT,
                               "%s %s %zu: 'inf' may only be the first or the last vertex", what,
-                              unit, lineno);
+                              unit, inf_line);
             goto cleanup;
         }
         if (strncmp(s, "name:", 5) == 0 || strncmp(s, "note:", 5) == 0) {
@@ -224,6 +224,7 @@ sw_status sw_path_parse(sw_path *out, const char *text, const char *origin,
             } else if (p.n > 0) {
                 p.inf_end = 1;
                 inf_seen_last = 1;
+                inf_line = lineno;
             } else {
                 st = sw_error_set(err, SW_EINPUT, "%s %s %zu: 'inf' twice", what, unit, lineno);
                 goto cleanup;

@@ -375,8 +375,6 @@ static void test_loop_json(void **state)
 static void test_loop_start_end_are_values(void **state)
 {
     (void)state;
-    SW_KNOWN_BUG("loop --json prints \"start\"/\"end\" as {\"z\",\"w\"} objects; cli.md says "
-                 "values [re, im]");
     const char *a[] = {"loop", "-f", "z^(1/3)", "-p", "circle 0 2", "--json", NULL};
     json_t *d = run_json(a, "loop");
     double complex w0 = jcplx(jget(d, "start"), "start"), w1 = jcplx(jget(d, "end"), "end");

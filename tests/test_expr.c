@@ -162,7 +162,6 @@ static const const_case negative_real_table[] = {
 static void test_constants_negative_real(void **state)
 {
     (void)state;
-    SW_KNOWN_BUG("negative literals carry a -0 imaginary part: sqrt(-4) = -2i, log(-1) = -i pi");
     assert_int_equal(check_const_cases(negative_real_table, sizeof negative_real_table /
                                                                 sizeof negative_real_table[0]),
                      0);
@@ -595,7 +594,6 @@ static void test_root_degree_column(void **state)
 static void test_root_degree_column_after_space(void **state)
 {
     (void)state;
-    SW_KNOWN_BUG("root(z, 0): the error names column 8 (the space), the degree is at 9");
     static const struct {
         const char *text;
         int column;

@@ -503,8 +503,6 @@ static void test_inf_in_the_middle(void **state)
     assert_int_equal(st, SW_EINPUT);
     assert_true(strstr(err.msg, "inf") != NULL);
     assert_int_equal(p.n, 0);
-    SW_KNOWN_BUG("'0; inf; 1' is refused, but the message names item 3 (the vertex after the "
-                 "misplaced 'inf') instead of item 2");
     check_error("0; inf; 1", st, &err, SW_EINPUT, 2, "item ", "inf");
 }
 

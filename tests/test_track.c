@@ -558,7 +558,6 @@ static void test_near_miss(void **state)
 static void test_log_relative_accuracy(void **state)
 {
     (void)state;
-    SW_KNOWN_BUG("log(z) along 2; 1+1i; 1+1e-8i: relative error 5e-9 against ln(1+1e-8i)");
     static const struct {
         const char *path;
         double complex z1;
@@ -669,8 +668,6 @@ static void test_certified(void **state)
 static void test_certified_short_steps(void **state)
 {
     (void)state;
-    SW_KNOWN_BUG("certified steps shorter than ~1e-9 fail to prove about half the time: "
-                 "'1; 1+1e-15' is not certified, '1; 1+1e-15i; 2' needs 1e5 steps");
     static const char *const paths[] = {
         "1; 1+1e-15",
         "1; 1+1e-15i; 2",

@@ -456,6 +456,11 @@ int cmd_loop(int argc, char **argv)
         const sw_germ *g0 = &r.tr.vert[0], *g1 = &r.tr.vert[r.tr.nvert - 1];
         double complex w0 = sw_func_value(f, g0), w1 = sw_func_value(f, g1);
         json_t *d = r.c.json ? common_doc(&r) : NULL;
+        if (d) {
+            /* the loop contract: "start" and "end" are the values themselves */
+            json_object_set_new(d, "start", json_cplx(w0));
+            json_object_set_new(d, "end", json_cplx(w1));
+        }
         char b1[64], b2[64];
         int perm_rc = -1;
         if (!r.c.json) {

@@ -385,8 +385,13 @@ int cli_start_germ(cli *c, sw_germ *g, const sw_track_opts *o, sw_error *err)
         vertex = k;
         hint = &w;
     }
-    if (sw_track_start_germ(g, c->f, &c->p, vertex, hint, o, err) != SW_OK)
+    if (sw_track_start_germ(g, c->f, &c->p, vertex, hint, o, err) != SW_OK) {
+        if (c->start)
+            sw_error_prefix(err, "--start %s", c->start);
+        else if (c->at)
+            sw_error_prefix(err, "--at %s", c->at);
         return cli_fail(c, err);
+    }
     return -1;
 }
 
