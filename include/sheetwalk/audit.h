@@ -99,18 +99,23 @@ typedef struct sw_audit_piece {
     double t0, t1;
     double complex ratio;      /* principal / continued in the middle of the piece */
     double complex difference; /* principal - continued there */
+    /* sampled: the logged points inside the piece and 7 evenly spaced ones */
     int agrees;                /* principal = continued (to 1e-9 relative) at every
                                   sampled point of the piece */
     int constant_ratio;        /* the ratio is the same (to 1e-9) at every sampled point */
+    int constant_difference;   /* so is the difference (logarithms: 2 pi i k) */
 } sw_audit_piece;
 
 typedef enum sw_audit_problem_kind {
     SW_AUDIT_ON_CUT = 1,   /* an operand lies on the negative real axis for a
                               stretch of the path: the principal value there is
                               decided by the sign of a floating-point zero */
-    SW_AUDIT_SINGULAR = 2  /* the principal evaluation is infinite or undefined
+    SW_AUDIT_SINGULAR = 2, /* the principal evaluation is infinite or undefined
                               near a point of the path (a zero or pole that the
                               continued branch does not have) */
+    SW_AUDIT_ERRATIC = 3   /* a principal operand (or the formula) flips back
+                              and forth along a stretch faster than sampling
+                              can resolve; nothing is reported there */
 } sw_audit_problem_kind;
 
 typedef struct sw_audit_problem {

@@ -10,4 +10,5 @@
 #include "sheetwalk/monodromy.h"
 #include "sheetwalk/integrate.h"
 #include "sheetwalk/cuts.h"
+#include "sheetwalk/audit.h"
 #endif

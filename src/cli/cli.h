@@ -119,6 +119,7 @@ int cmd_sheets(int argc, char **argv);
 int cmd_integrate(int argc, char **argv);
 int cmd_cuts(int argc, char **argv);
 int cmd_which(int argc, char **argv);
+int cmd_audit(int argc, char **argv);
 int cmd_batch(int argc, char **argv);
 /* The command NAME from the table in main.c, or NULL (batch mode). */
 int (*cli_command(const char *name))(int, char **);
