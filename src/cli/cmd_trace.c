@@ -169,13 +169,13 @@ static json_t *winding(const run *r, int print)
         if (print) {
             char b[64];
             if (!header)
-                printf("\nturns around the branch points:\n  %-28s %s\n", "branch point",
+                printf("\nturns around the branch points:\n  %-34s %s\n", "branch point",
                        "turns (counter-clockwise)");
             header = 1;
             if (sw_path_is_closed(&r->c.p))
-                printf("  %-28s %ld\n", cfmt(b, sizeof b, pt->z), lround(t));
+                printf("  %-34s %ld\n", cfmt(b, sizeof b, pt->z), lround(t));
             else
-                printf("  %-28s %.6f\n", cfmt(b, sizeof b, pt->z), t);
+                printf("  %-34s %.6f\n", cfmt(b, sizeof b, pt->z), t);
         }
     }
     return a;

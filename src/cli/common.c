@@ -576,26 +576,26 @@ static void point_row(FILE *fp, const char *where, const sw_point *pt, const sw_
                 snprintf(b, sizeof b, "ratio %s (not a pure factor)",
                          cfmt(a, sizeof a, pt->ratio)), what = b;
         }
-        fprintf(fp, "  %-28s %-13s %s\n", where, kind, what);
+        fprintf(fp, "  %-34s %-13s %s\n", where, kind, what);
     } else {
         cyc[0] = '\0';
         if (pt->perm)
             cycles_text(cyc, sizeof cyc, pt->perm, pt->n);
-        fprintf(fp, "  %-28s %-13s %s\n", where, kind, cyc);
+        fprintf(fp, "  %-34s %-13s %s\n", where, kind, cyc);
     }
 }
 
 void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f)
 {
     char a[64];
-    fprintf(fp, "  %-28s %-13s %s\n", "point", "kind",
+    fprintf(fp, "  %-34s %-13s %s\n", "point", "kind",
             sw_func_kind_of(f) == SW_FUNC_EXPR ? "one counter-clockwise turn" : "cycles");
     for (size_t k = 0; k < pts->n; k++)
         point_row(fp, cfmt(a, sizeof a, pts->pt[k].z), &pts->pt[k], f);
     if (pts->complete)
         point_row(fp, "infinity", &pts->infinity, f);
     else
-        fprintf(fp, "  %-28s %s\n", "infinity", "not determined");
+        fprintf(fp, "  %-34s %s\n", "infinity", "not determined");
     if (pts->complete && sw_func_kind_of(f) == SW_FUNC_EXPR && pts->inf_exponent_ok)
         fprintf(fp, "  (at infinity |f| grows like |z|^%.6g: numerical estimate)\n",
                 pts->inf_exponent);
