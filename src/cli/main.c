@@ -16,6 +16,7 @@ static const command commands[] = {
     {"points", cmd_points, "branch points, their local monodromy, and infinity"},
     {"trace", cmd_trace, "continue a function along a path: values, branches, winding"},
     {"loop", cmd_loop, "what a closed path does to the function (multiplier, permutation)"},
+    {"sheets", cmd_sheets, "the monodromy graph of a curve: components, genus, group order"},
     {"integrate", cmd_integrate, "integrate the tracked branch along a path (ends at branch points, inf)"},
     {"cuts", cmd_cuts, "check a cut system: single-valued? jumps across every piece; --eval"},
     {"which", cmd_which, "which sheet a value at a point is on, seen from a base point"},
@@ -33,7 +34,7 @@ int (*cli_command(const char *name))(int, char **)
 }
 
 /* Commands of the contract that later versions add. */
-static const char *const planned[] = {"sheets", "plot", NULL};
+static const char *const planned[] = {"plot", NULL};
 
 static void usage(FILE *fp)
 {
