@@ -1000,6 +1000,86 @@ static sw_status curve_germ_at(sw_germ *g, const void *impl, double complex z, i
     return SW_OK;
 }
 
+/* Certified steps are proven in pieces: a root may move only a fraction of
+ * its distance to the others within one Krawczyk box (curve_cert.c), which
+ * is shorter than what the double-precision test accepts.  The number of
+ * pieces is chosen from the motion so that most pieces are proven at the
+ * first try; a piece that is not is halved (up to CERT_SPLIT_DEPTH times).
+ * Intermediate fibers come from double-precision steps; every piece is
+ * proven between the fibers at its ends, so the chain proves the whole step
+ * from IN's fiber to W1. */
+#define CERT_MOTION 0.125
+#define CERT_PW_CHANGE 0.25
+#define CERT_MAX_PIECES 256
+#define CERT_SPLIT_DEPTH 3
+
+static sw_step_result certify_piece(const sw_curve *cv, double complex za,
+                                    const double complex *wa, double complex zb,
+                                    const double complex *wb, double sep, int depth)
+{
+    double complex wm[SW_CURVE_MAX_DEGREE], zm = 0.5 * (za + zb);
+    sw_step_result r = sw_curve_certify_step(cv, za, wa, zb, wb);
+    if (r == SW_STEP_OK || depth == 0)
+        return r == SW_STEP_TOO_FAR ? SW_STEP_UNPROVEN : r;
+    if (sw_curve_step(wm, cv, za, wa, zm, sep) != SW_STEP_OK)
+        return SW_STEP_UNPROVEN;
+    r = certify_piece(cv, za, wa, zm, wm, sep, depth - 1);
+    if (r != SW_STEP_OK)
+        return r;
+    return certify_piece(cv, zm, wm, zb, wb, sep, depth - 1);
+}
+
+static sw_step_result certify_pieces(const sw_curve *cv, double complex z0,
+                                     const double complex *w0, double complex z1,
+                                     const double complex *w1, double sep)
+{
+    size_t n = (size_t)cv->n, i;
+    double ratio = 0;
+    long k, q;
+    double complex cur[SW_CURVE_MAX_DEGREE], nxt[SW_CURVE_MAX_DEGREE], zc = z0;
+    for (i = 0; i < n && n > 1; i++) {
+        double s = fmin(sw_fiber_sep(w0, n, i), sw_fiber_sep(w1, n, i));
+        ratio = fmax(ratio, cabs(w1[i] - w0[i]) / s);
+    }
+    /* the Krawczyk contraction also needs P_w to change little across a
+     * piece: |P_wz / P_w| |dz| small (P_wz from the derivative coefficients) */
+    {
+        double complex A[SW_CURVE_MAX_DEGREE + 1], dA[SW_CURVE_MAX_DEGREE + 1];
+        long j;
+        double rel = 0;
+        coeffs_at(A, dA, cv, z0);
+        for (i = 0; i < n; i++) {
+            double complex w = w0[i], Pw = 0, Pwz = 0;
+            for (j = (long)n; j >= 1; j--) {
+                Pw = Pw * w + (double)j * A[j];
+                Pwz = Pwz * w + (double)j * dA[j];
+            }
+            if (Pw != 0)
+                rel = fmax(rel, cabs(Pwz / Pw));
+        }
+        ratio = fmax(ratio, rel * cabs(z1 - z0) * CERT_MOTION / CERT_PW_CHANGE);
+    }
+    k = (long)ceil(ratio / CERT_MOTION);
+    if (k < 1) k = 1;
+    if (k > CERT_MAX_PIECES)
+        return SW_STEP_TOO_FAR;
+    memcpy(cur, w0, n * sizeof *cur);
+    for (q = 1; q <= k; q++) {
+        double complex zq = q == k ? z1 : z0 + (z1 - z0) * ((double)q / (double)k);
+        sw_step_result r;
+        if (q == k)
+            memcpy(nxt, w1, n * sizeof *nxt);
+        else if (sw_curve_step(nxt, cv, zc, cur, zq, sep) != SW_STEP_OK)
+            return SW_STEP_TOO_FAR;
+        r = certify_piece(cv, zc, cur, zq, nxt, sep, CERT_SPLIT_DEPTH);
+        if (r != SW_STEP_OK)
+            return r;
+        memcpy(cur, nxt, n * sizeof *cur);
+        zc = zq;
+    }
+    return SW_STEP_OK;
+}
+
 static sw_step_result curve_advance(sw_germ *out, const sw_germ *in, double complex z,
                                     const void *impl, const sw_step_opts *o, int *why)
 {
@@ -1013,7 +1093,7 @@ static sw_step_result curve_advance(sw_germ *out, const sw_germ *in, double comp
     if (r != SW_STEP_OK)
         return r;
     if (o && o->certify) {
-        r = sw_curve_certify_step(cv, in->z, in->s, z, w1);
+        r = certify_pieces(cv, in->z, in->s, z, w1, sep);
         if (r == SW_STEP_TOO_FAR)
             return r;
     }
@@ -1251,6 +1331,9 @@ sw_status sw_curve_build(sw_curve **out, const char *text, const sw_params *para
         cv->c[i] = CMPLX(ldexp(creal(cv->c[i]), -emax), ldexp(cimag(cv->c[i]), -emax));
         cv->cabs[i] = cabs(cv->c[i]);
         acb_mul_2exp_si(cv->ball + i, cv->ball + i, -emax);
+        /* one-limb midpoints: the certified steps work at 64 bits, and a
+         * rounded ball still encloses the exact coefficient */
+        acb_set_round(cv->ball + i, cv->ball + i, CURVE_BALL_PREC);
     }
     if (cv->complex_coeffs) {
         /* numerical square-free test at two fixed generic points */

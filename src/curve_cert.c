@@ -45,11 +45,11 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
                                      const double complex *w1)
 {
     long n = cv->n, m = cv->m, i, j, k;
-    int attempt;
     double rho[SW_CURVE_MAX_DEGREE], rmaxv[SW_CURVE_MAX_DEGREE];
     sw_step_result res = SW_STEP_OK;
-    acb_t Z, Zc, dZ, t, M, W, P, Pw, Q, Y, K, D;
-    acb_ptr A, dA;
+    int attempt;
+    acb_t Zc, dZ, t, M, P, Pw, Q, Y, K, D;
+    acb_ptr zp, Zp, A, dA, ddA, jA, jdA, jjdA, jddA, jjA, jjjA, Mp, Wp, cd;
     double complex zc = 0.5 * (z0 + z1);
 
     /* geometry first (cheap): box radii allowed by condition (2) */
@@ -70,10 +70,22 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
         rmaxv[i] = rmax;
     }
 
-    acb_init(Z); acb_init(Zc); acb_init(dZ); acb_init(t); acb_init(M); acb_init(W);
-    acb_init(P); acb_init(Pw); acb_init(Q); acb_init(Y); acb_init(K); acb_init(D);
+    acb_init(Zc); acb_init(dZ); acb_init(t); acb_init(M); acb_init(P); acb_init(Pw);
+    acb_init(Q); acb_init(Y); acb_init(K); acb_init(D);
+    zp = _acb_vec_init(m + 1);
+    Zp = _acb_vec_init(m + 1);
+    cd = _acb_vec_init(m + 1);
     A = _acb_vec_init(n + 1);
     dA = _acb_vec_init(n + 1);
+    jA = _acb_vec_init(n + 1);
+    jdA = _acb_vec_init(n + 1);
+    jjA = _acb_vec_init(n + 1);
+    ddA = _acb_vec_init(n + 1);
+    jjdA = _acb_vec_init(n + 1);
+    jddA = _acb_vec_init(n + 1);
+    jjjA = _acb_vec_init(n + 1);
+    Mp = _acb_vec_init(n + 1);
+    Wp = _acb_vec_init(n + 1);
 
     /* Zc the midpoint, dZ = (z1 - z0)/2 * [-1, 1] (a real interval times a
      * complex number: its rectangle hull is the segment's, with no widening
@@ -88,92 +100,109 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
         acb_mul_arb(dZ, dZ, e, CERT_PREC);
         arb_clear(e);
     }
-    acb_add(Z, Zc, dZ, CERT_PREC);
-    /* A_j(zc) and A_j'(Z) by Horner.  Mean-value (centred) forms below keep
-     * the cancellation between the terms of P near a root: a naive
-     * evaluation over the box would add up their individual variations and
-     * force needlessly short steps. */
+    /* powers of zc and of the box Z = zc + dZ */
+    acb_one(zp + 0);
+    acb_one(Zp + 0);
+    if (m >= 1) {
+        acb_set(zp + 1, Zc);
+        acb_add(Zp + 1, Zc, dZ, CERT_PREC);
+    }
+    for (k = 2; k <= m; k++) {
+        acb_mul(zp + k, zp + k - 1, zp + 1, CERT_PREC);
+        acb_mul(Zp + k, Zp + k - 1, Zp + 1, CERT_PREC);
+    }
+    /* Coefficients: A_j(zc), A_j'(zc) (points) and A_j''(Z) (over the box).
+     * Everything below is a mean-value (centred) form around (zc, m): the
+     * terms of P nearly cancel near a root, and a naive evaluation over the
+     * boxes would add up their individual variations and force needlessly
+     * short steps.  Only second-order remainders are evaluated over boxes. */
     for (j = 0; j <= n; j++) {
         const acb_struct *c = cv->ball + j * (m + 1);
-        acb_set(A + j, c + m);
-        for (k = m - 1; k >= 0; k--) {
-            acb_mul(A + j, A + j, Zc, CERT_PREC);
-            acb_add(A + j, A + j, c + k, CERT_PREC);
+        acb_dot(A + j, NULL, 0, c, 1, zp, 1, m + 1, CERT_PREC);
+        if (m >= 1) {
+            for (k = 1; k <= m; k++)
+                acb_mul_si(cd + k - 1, c + k, k, CERT_PREC);
+            acb_dot(dA + j, NULL, 0, cd, 1, zp, 1, m, CERT_PREC);
+        } else {
+            acb_zero(dA + j);
         }
-        acb_zero(dA + j);
-        for (k = m; k >= 1; k--) {
-            acb_mul(dA + j, dA + j, Z, CERT_PREC);
-            acb_mul_si(t, c + k, k, CERT_PREC);
-            acb_add(dA + j, dA + j, t, CERT_PREC);
+        if (m >= 2) {
+            for (k = 2; k <= m; k++)
+                acb_mul_si(cd + k - 2, c + k, k * (k - 1), CERT_PREC);
+            acb_dot(ddA + j, NULL, 0, cd, 1, Zp, 1, m - 1, CERT_PREC);
+        } else {
+            acb_zero(ddA + j);
         }
+        acb_mul_si(jA + j, A + j, j, CERT_PREC);
+        acb_mul_si(jdA + j, dA + j, j, CERT_PREC);
+        acb_mul_si(jjdA + j, dA + j, j * (j - 1), CERT_PREC);
+        acb_mul_si(jddA + j, ddA + j, j, CERT_PREC);
+        acb_mul_si(jjA + j, A + j, j * (j - 1), CERT_PREC);
+        acb_mul_si(jjjA + j, A + j, j * (j - 1) * (j - 2), CERT_PREC);
     }
     for (i = 0; i < n && res == SW_STEP_OK; i++) {
         double complex mid = 0.5 * (w0[i] + w1[i]), pw = 0;
-        double complex Ad[SW_CURVE_MAX_DEGREE + 1];
         arb_t r;
         /* Y = 1 / P_w(zc, m) in double: any Y is valid, this one contracts */
-        for (j = 0; j <= n; j++)
-            Ad[j] = CMPLX(arf_get_d(arb_midref(acb_realref(A + j)), ARF_RND_NEAR),
-                          arf_get_d(arb_midref(acb_imagref(A + j)), ARF_RND_NEAR));
         for (j = n; j >= 1; j--)
-            pw = pw * mid + (double)j * Ad[j];
+            pw = pw * mid + CMPLX(arf_get_d(arb_midref(acb_realref(jA + j)), ARF_RND_NEAR),
+                                  arf_get_d(arb_midref(acb_imagref(jA + j)), ARF_RND_NEAR));
         if (pw == 0 || !isfinite(creal(pw)) || !isfinite(cimag(pw))) {
             res = SW_STEP_UNPROVEN;
             break;
         }
+        acb_set_dc(Y, 1.0 / pw);
+        acb_set_dc(M, mid);
+        acb_one(Mp + 0);
+        for (j = 1; j <= n; j++)
+            acb_mul(Mp + j, Mp + j - 1, M, CERT_PREC);
+        /* P(Z, m) in P(zc, m) + (P_z(zc, m) + P_zz(Z, m) dZ) dZ */
+        acb_dot(P, NULL, 0, A, 1, Mp, 1, n + 1, CERT_PREC);
+        acb_dot(Q, NULL, 0, dA, 1, Mp, 1, n + 1, CERT_PREC);
+        acb_dot(t, NULL, 0, ddA, 1, Mp, 1, n + 1, CERT_PREC);
+        acb_addmul(Q, t, dZ, CERT_PREC);
+        acb_addmul(P, Q, dZ, CERT_PREC);
+        acb_mul(P, P, Y, CERT_PREC);                       /* Y P */
         arb_init(r);
         /* epsilon-inflation (Rump): when K does not fit, retry once with the
          * box widened to a little more than K, if (2) still allows it */
         for (attempt = 0; attempt < 2; attempt++) {
             int proven = 1;
-            acb_set_dc(Y, 1.0 / pw);
-            acb_set_dc(M, mid);
-            /* D = W - M = [-rho, rho] + i[-rho, rho] */
             arb_set_d(r, rho[i]);
-            acb_zero(D);
+            acb_zero(D);                                   /* D = W - m */
             arb_add_error(acb_realref(D), r);
             arb_add_error(acb_imagref(D), r);
-            acb_add(W, M, D, CERT_PREC);
-            /* P(Z, m) in P(zc, m) + P_z(Z, m) dZ */
-            acb_set(P, A + n);
-            acb_set(Q, dA + n);
-            for (j = n - 1; j >= 0; j--) {
-                acb_mul(P, P, M, CERT_PREC);
-                acb_add(P, P, A + j, CERT_PREC);
-                acb_mul(Q, Q, M, CERT_PREC);
-                acb_add(Q, Q, dA + j, CERT_PREC);
-            }
-            acb_addmul(P, Q, dZ, CERT_PREC);
-            /* P_w(Z, W) in P_w(zc, m) + P_wz(Z, W) dZ + P_ww(zc, W) D */
-            acb_mul_si(Pw, A + n, n, CERT_PREC);
-            for (j = n - 1; j >= 1; j--) {
-                acb_mul(Pw, Pw, M, CERT_PREC);
-                acb_mul_si(t, A + j, j, CERT_PREC);
-                acb_add(Pw, Pw, t, CERT_PREC);
-            }
-            acb_mul_si(Q, dA + n, n, CERT_PREC);              /* P_wz(Z, W) */
-            for (j = n - 1; j >= 1; j--) {
-                acb_mul(Q, Q, W, CERT_PREC);
-                acb_mul_si(t, dA + j, j, CERT_PREC);
-                acb_add(Q, Q, t, CERT_PREC);
+            acb_add(Wp + 1, M, D, CERT_PREC);              /* W */
+            acb_one(Wp + 0);
+            for (j = 2; j < n; j++)
+                acb_mul(Wp + j, Wp + j - 1, Wp + 1, CERT_PREC);
+            /* P_w(Z, W) in P_w(zc, m) + P_wz(Z, W) dZ + P_ww(zc, W) D, with
+             * P_wz(Z, W) in P_wz(zc, m) + P_wzz(Z, W) dZ + P_wzw(zc, W) D */
+            acb_dot(Pw, NULL, 0, jA + 1, 1, Mp, 1, n, CERT_PREC);
+            acb_dot(Q, NULL, 0, jdA + 1, 1, Mp, 1, n, CERT_PREC);
+            acb_dot(t, NULL, 0, jddA + 1, 1, Wp, 1, n, CERT_PREC);
+            acb_addmul(Q, t, dZ, CERT_PREC);
+            if (n >= 2) {
+                acb_dot(t, NULL, 0, jjdA + 2, 1, Wp, 1, n - 1, CERT_PREC);
+                acb_addmul(Q, t, D, CERT_PREC);
             }
             acb_addmul(Pw, Q, dZ, CERT_PREC);
             if (n >= 2) {
-                acb_mul_si(Q, A + n, n * (n - 1), CERT_PREC);  /* P_ww(zc, W) */
-                for (j = n - 1; j >= 2; j--) {
-                    acb_mul(Q, Q, W, CERT_PREC);
-                    acb_mul_si(t, A + j, j * (j - 1), CERT_PREC);
-                    acb_add(Q, Q, t, CERT_PREC);
+                /* P_ww(zc, W) in P_ww(zc, m) + P_www(zc, W) D: centred again,
+                 * the contraction is then that of the exact P_ww at m */
+                acb_dot(Q, NULL, 0, jjA + 2, 1, Mp, 1, n - 1, CERT_PREC);
+                if (n >= 3) {
+                    acb_dot(t, NULL, 0, jjjA + 3, 1, Wp, 1, n - 2, CERT_PREC);
+                    acb_addmul(Q, t, D, CERT_PREC);
                 }
                 acb_addmul(Pw, Q, D, CERT_PREC);
             }
-            /* K - M = -Y P + (1 - Y Pw) D */
+            /* K - m = -Y P + (1 - Y Pw) D */
             acb_mul(Pw, Pw, Y, CERT_PREC);
             acb_sub_ui(Pw, Pw, 1, CERT_PREC);
             acb_neg(Pw, Pw);
             acb_mul(K, Pw, D, CERT_PREC);
-            acb_mul(t, Y, P, CERT_PREC);
-            acb_sub(K, K, t, CERT_PREC);
+            acb_sub(K, K, P, CERT_PREC);
             /* strictly inside the square of half-width rho */
             {
                 arb_t lo;
@@ -205,9 +234,21 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
         }
         arb_clear(r);
     }
+    _acb_vec_clear(zp, m + 1);
+    _acb_vec_clear(Zp, m + 1);
+    _acb_vec_clear(cd, m + 1);
     _acb_vec_clear(A, n + 1);
     _acb_vec_clear(dA, n + 1);
-    acb_clear(Z); acb_clear(Zc); acb_clear(dZ); acb_clear(t); acb_clear(M); acb_clear(W);
-    acb_clear(P); acb_clear(Pw); acb_clear(Q); acb_clear(Y); acb_clear(K); acb_clear(D);
+    _acb_vec_clear(jA, n + 1);
+    _acb_vec_clear(jdA, n + 1);
+    _acb_vec_clear(jjA, n + 1);
+    _acb_vec_clear(ddA, n + 1);
+    _acb_vec_clear(jjdA, n + 1);
+    _acb_vec_clear(jddA, n + 1);
+    _acb_vec_clear(jjjA, n + 1);
+    _acb_vec_clear(Mp, n + 1);
+    _acb_vec_clear(Wp, n + 1);
+    acb_clear(Zc); acb_clear(dZ); acb_clear(t); acb_clear(M); acb_clear(P); acb_clear(Pw);
+    acb_clear(Q); acb_clear(Y); acb_clear(K); acb_clear(D);
     return res;
 }

@@ -44,8 +44,9 @@ typedef struct sw_curve {
     char *text;             /* the input text */
 } sw_curve;
 
-/* Precision of the coefficient balls used by certified steps (bits). */
-#define CURVE_BALL_PREC 128
+/* Precision of the coefficient balls used by certified steps (bits; one
+ * limb keeps the ball arithmetic on its fast path). */
+#define CURVE_BALL_PREC 64
 
 /* Parse TEXT into a curve (see sw_curve_func_new for the rules). */
 sw_status sw_curve_build(sw_curve **out, const char *text, const sw_params *params,
