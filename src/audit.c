@@ -480,7 +480,8 @@ static sw_status ctx_init(ctx *c, const sw_func *f, const sw_path *path, const s
         return sw_error_set(err, SW_EUSAGE, "the trace has no dense log (track with keep_log)");
     if (path->n < 2)
         return sw_error_set(err, SW_EINPUT, "the path needs at least two vertices");
-    if (tr->nvert != path->n || fabs(tr->t[tr->nlog - 1] - (double)c->nseg) > 1e-9)
+    /* (the log ends at the last segment of positive length, not always at nseg) */
+    if (tr->nvert != path->n || tr->t[tr->nlog - 1] > (double)c->nseg + 1e-9)
         return sw_error_set(err, SW_EUSAGE, "the trace does not belong to this path");
     c->fv = malloc(path->n * sizeof *c->fv);
     c->seglen = malloc(path->n * sizeof *c->seglen);
@@ -489,12 +490,18 @@ static sw_status ctx_init(ctx *c, const sw_func *f, const sw_path *path, const s
     /* followed vertices: logged at exactly t = k; a vertex that was not
        logged closes a segment of length zero and sits where the previous one does */
     for (size_t k = 0; k < path->n; k++)
-        c->fv[k] = k == 0 ? tr->z[0] : c->fv[k - 1];
+        c->seglen[k] = -1; /* marks "not logged" for the moment */
     for (size_t i = 0; i < tr->nlog; i++) {
         double t = tr->t[i];
-        if (t == floor(t) && t >= 0 && t <= (double)c->nseg)
+        if (t == floor(t) && t >= 0 && t <= (double)c->nseg) {
             c->fv[(size_t)t] = tr->z[i];
+            c->seglen[(size_t)t] = 0;
+        }
     }
+    c->fv[0] = tr->z[0];
+    for (size_t k = 1; k < path->n; k++)
+        if (c->seglen[k] < 0)
+            c->fv[k] = c->fv[k - 1];
     for (size_t k = 0; k + 1 < path->n; k++)
         c->seglen[k] = cabs(c->fv[k + 1] - c->fv[k]);
     if (sw_germ_init(&c->g, f) != SW_OK || sw_germ_init(&c->tmp, f) != SW_OK)

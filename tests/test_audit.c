@@ -388,6 +388,27 @@ static void test_on_the_cut(void **state)
     ar_clear(&r);
 }
 
+static void test_repeated_vertices(void **state)
+{
+    (void)state;
+    ar r;
+    /* repeated vertices make segments of length zero: sqrt(z) crosses the
+       negative axis at -1 (segment 2, s = 1/2) and at -0.5 (segment 4,
+       s = 1/2), and nowhere else (DLMF 4.2.3) */
+    ar_audit(&r, "sqrt(z)", "1i; -1+1i; -1+1i; -1-1i; -1-1i; 1i; 1i");
+    expect_count(&r, 2, "with repeated vertices", "DLMF 4.2.3");
+    TU_CHECK_CLOSE(r.a.jump[0].t, 2.5, 1e-10, "first jump", "segment 2, s = 1/2");
+    TU_CHECK_CLOSE(r.a.jump[1].t, 4.5, 1e-10, "second jump", "segment 4, s = 1/2");
+    expect_jump_at(&r, -1, "first jump", "DLMF 4.2.3");
+    expect_jump_at(&r, -0.5, "second jump", "DLMF 4.2.3");
+    ar_clear(&r);
+    /* a crossing exactly at a vertex where the path turns */
+    ar_audit(&r, "sqrt(z)", "-1+1i; -2; -1-1i");
+    expect_count(&r, 1, "crossing at a vertex", "DLMF 4.2.3");
+    TU_CHECK_CLOSE(r.a.jump[0].t, 1, 1e-10, "at the vertex", "vertex 1");
+    ar_clear(&r);
+}
+
 static void test_principal_pole(void **state)
 {
     (void)state;
@@ -852,6 +873,7 @@ int main(void)
         cmocka_unit_test(test_nested),
         cmocka_unit_test(test_bank_paths),
         cmocka_unit_test(test_on_the_cut),
+        cmocka_unit_test(test_repeated_vertices),
         cmocka_unit_test(test_principal_pole),
         cmocka_unit_test(test_property_random_polylines),
         cmocka_unit_test(test_csv_parsing),

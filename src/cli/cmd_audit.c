@@ -179,6 +179,25 @@ static const char *zfmt(char *buf, size_t n, double complex z, double scale)
     return cfmt(buf, n, CMPLX(re, im));
 }
 
+/* Ratios and differences for the table: 10 significant digits (the limits
+ * are taken a bracket's width, ~1e-14 of the scale, apart), components below
+ * 1e-10 of the modulus shown as 0 (JSON keeps the raw values). */
+static const char *vfmt(char *buf, size_t n, double complex z)
+{
+    double re = creal(z), im = cimag(z), mod = cabs(z);
+    if (fabs(re) < 1e-10 * mod)
+        re = 0;
+    if (fabs(im) < 1e-10 * mod)
+        im = 0;
+    if (im == 0)
+        snprintf(buf, n, "%.10g", re + 0.0);
+    else if (re == 0)
+        snprintf(buf, n, "%.10gi", im);
+    else
+        snprintf(buf, n, "%.10g%+.10gi", re, im);
+    return buf;
+}
+
 static void print_audit(const sw_func *f, const sw_audit *a)
 {
     char b1[64], b2[64], b3[64], buf[2048];
@@ -194,7 +213,7 @@ static void print_audit(const sw_func *f, const sw_audit *a)
     for (size_t q = 0; q < a->njumps; q++) {
         const sw_audit_jump *j = &a->jump[q];
         printf("  %-3zu %-16.12g %-34s %-26s %s\n", q + 1, j->t, zfmt(b1, sizeof b1, j->z, a->scale),
-               cfmt(b2, sizeof b2, j->ratio), cfmt(b3, sizeof b3, j->difference));
+               vfmt(b2, sizeof b2, j->ratio), vfmt(b3, sizeof b3, j->difference));
         printf("      %s\n", sw_audit_explain(buf, sizeof buf, f, j));
     }
     if (a->nnotes) {
@@ -212,16 +231,19 @@ static void print_audit(const sw_func *f, const sw_audit *a)
         snprintf(range, sizeof range, "t from %.10g to %.10g", p->t0, p->t1);
         if (p->agrees)
             printf("  %-36s principal = continued\n", range);
+        else if (p->constant_ratio && p->constant_difference && !isnan(creal(p->ratio)))
+            printf("  %-36s principal = (%s) * continued = continued + (%s)\n", range,
+                   vfmt(b1, sizeof b1, p->ratio), vfmt(b2, sizeof b2, p->difference));
         else if (p->constant_ratio && !isnan(creal(p->ratio)))
             printf("  %-36s principal = (%s) * continued\n", range,
-                   cfmt(b1, sizeof b1, p->ratio));
+                   vfmt(b1, sizeof b1, p->ratio));
         else if (p->constant_difference)
             printf("  %-36s principal = continued + (%s)\n", range,
-                   cfmt(b1, sizeof b1, p->difference));
+                   vfmt(b1, sizeof b1, p->difference));
         else
             printf("  %-36s principal is on another sheet (in the middle: principal / "
                    "continued = %s, neither ratio nor difference constant)\n", range,
-                   cfmt(b1, sizeof b1, p->ratio));
+                   vfmt(b1, sizeof b1, p->ratio));
     }
     if (a->nproblems) {
         printf("\nProblems:\n");
