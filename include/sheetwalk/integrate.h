@@ -126,9 +126,12 @@ typedef struct sw_integral_piece {
 typedef struct sw_integral {
     double complex value;
     double abserr;            /* error estimate (not a bound) */
+    double magnitude;         /* estimate of the integral of |R dz| along the path:
+                                 the scale below which cancellation hides digits */
     size_t evaluations;       /* integrand evaluations, all pieces and analyses */
     size_t steps;             /* continuation steps (tracking and small loops) */
-    int converged;            /* 1: abserr <= max(epsabs, epsrel |value|) */
+    int converged;            /* 1: abserr <= max(epsabs, epsrel |value|, or 1000
+                                 eps magnitude when the value cancels) */
     int certified;            /* always 0: quadrature is numerical */
     size_t npieces;
     sw_integral_piece *piece;
