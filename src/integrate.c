@@ -1188,10 +1188,27 @@ static int tanh_sinh_end(ictx *c, const zmap *m, const endinfo *ei, double X, do
 
 /* ------------------------------------------------------ one singular end */
 
+/* A complex number for messages: "2", "-0.5i", "1+2i" (10 digits). */
+static const char *cstr(char *buf, size_t n, double complex z)
+{
+    double re = creal(z), im = cimag(z), mod = cabs(z);
+    if (fabs(re) <= 1e-14 * mod)
+        re = 0;
+    if (fabs(im) <= 1e-14 * mod)
+        im = 0;
+    if (im == 0)
+        snprintf(buf, n, "%.10g", re + 0.0);
+    else if (re == 0)
+        snprintf(buf, n, "%.10gi", im);
+    else
+        snprintf(buf, n, "%.10g%+.10gi", re, im);
+    return buf;
+}
+
 static sw_status refuse_end(ictx *c, const zmap *m, const endinfo *ei, double complex z0)
 {
     double complex a = ei->alpha;
-    char buf[SW_ERROR_MSG_MAX];
+    char buf[SW_ERROR_MSG_MAX], sa[64], sz[64];
     if (m->inf) {
         double complex beta = -a - 2; /* F ~ s^a  <=>  f ~ z^(-a-2) */
         snprintf(buf, sizeof buf,
@@ -1201,10 +1218,9 @@ static sw_status refuse_end(ictx *c, const zmap *m, const endinfo *ei, double co
                                         : "estimated exponent");
     } else {
         snprintf(buf, sizeof buf,
-                 "the integrand behaves like (z - z0)^(%.6g%+.6gi) at the end z0 = "
-                 "%.10g%+.10gi of the path (%s): not integrable (the exponent's real part is "
-                 "<= -1)",
-                 creal(a), cimag(a), creal(z0), cimag(z0),
+                 "the integrand behaves like (z - z0)^(%s) at the end z0 = %s of the path "
+                 "(%s): not integrable (the exponent's real part is <= -1)",
+                 isfinite(creal(a)) ? cstr(sa, sizeof sa, a) : "-inf", cstr(sz, sizeof sz, z0),
                  ei->exact ? "exponent from continuation" : "estimated exponent");
     }
     c->st = SW_EINPUT;
