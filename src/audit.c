@@ -172,6 +172,7 @@ typedef struct ctx {
     double scale;
     size_t nseg, m;
     double complex *fv;  /* followed vertices */
+    int *first;          /* first program node of every node's subtree */
     double *seglen;      /* followed segment lengths */
     crossing *cr;
     size_t ncr, acr;
@@ -504,6 +505,20 @@ static sw_status ctx_init(ctx *c, const sw_func *f, const sw_path *path, const s
             c->fv[k] = c->fv[k - 1];
     for (size_t k = 0; k + 1 < path->n; k++)
         c->seglen[k] = cabs(c->fv[k + 1] - c->fv[k]);
+    if (c->e != NULL) {
+        c->first = malloc((c->e->n ? c->e->n : 1) * sizeof *c->first);
+        if (c->first == NULL)
+            return sw_error_set(err, SW_ENOMEM, "out of memory");
+        for (size_t n = 0; n < c->e->n; n++) {
+            const sw_node *nd = &c->e->node[n];
+            int f0 = (int)n;
+            if (nd->a >= 0 && c->first[nd->a] < f0)
+                f0 = c->first[nd->a];
+            if (nd->b >= 0 && c->first[nd->b] < f0)
+                f0 = c->first[nd->b];
+            c->first[n] = f0;
+        }
+    }
     if (sw_germ_init(&c->g, f) != SW_OK || sw_germ_init(&c->tmp, f) != SW_OK)
         return sw_error_set(err, SW_ENOMEM, "out of memory");
     c->have_germs = 1;
@@ -513,6 +528,7 @@ static sw_status ctx_init(ctx *c, const sw_func *f, const sw_path *path, const s
 static void ctx_clear(ctx *c)
 {
     free(c->fv);
+    free(c->first);
     free(c->seglen);
     free(c->cr);
     free(c->un);
@@ -525,6 +541,25 @@ static void ctx_clear(ctx *c)
 }
 
 /* ------------------------------------------------------ the formula audit */
+
+static int cmp_double(const void *pa, const void *pb)
+{
+    double a = *(const double *)pa, b = *(const double *)pb;
+    return a < b ? -1 : a > b;
+}
+
+/* Does node J (J == m: the formula) use node I in its operand?  In the
+ * postfix program a subtree occupies the contiguous range [first, root]. */
+static int depends(const ctx *c, size_t j, size_t i)
+{
+    if (j == c->m)
+        return 1;
+    if (i >= j)
+        return 0;
+    int a = c->e->node[c->e->mv_node[j]].a;
+    int n = c->e->mv_node[i];
+    return a >= 0 && n <= a && n >= c->first[a];
+}
 
 static int cmp_crossing(const void *pa, const void *pb)
 {
@@ -626,7 +661,7 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
     sw_audit_init(&res);
     ctx c;
     sw_status st = ctx_init(&c, f, path, tr, o, err);
-    double *svals = NULL;
+    double *svals = NULL, *pts = NULL;
     double complex *uvals = NULL;
     pos *ev_lo = NULL, *ev_hi = NULL;
     size_t aj = 0, an = 0, ap = 0;
@@ -636,9 +671,11 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
 
     /* ---- scan every segment, node by node (the formula last, for poles) */
     size_t i0 = 0;
+    size_t apts = tr->nlog + 2, auv = tr->nlog + 2;
     svals = malloc((tr->nlog + 2) * sizeof *svals);
-    uvals = malloc((tr->nlog + 2) * sizeof *uvals);
-    if (svals == NULL || uvals == NULL) {
+    pts = malloc(apts * sizeof *pts);
+    uvals = malloc(auv * sizeof *uvals);
+    if (svals == NULL || uvals == NULL || pts == NULL) {
         st = sw_error_set(err, SW_ENOMEM, "out of memory");
         goto cleanup;
     }
@@ -658,27 +695,63 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
         svals[ns++] = 1;
         if (c.seglen[k] == 0)
             continue;
+        size_t cr_seg = c.ncr; /* segments are scanned in order: this one's crossings follow */
         for (size_t j = 0; j <= c.m; j++) {
+            /* sample points: the logged steps, and both ends of the bracket of
+               every crossing of an inner node this one depends on: the
+               operand jumps there (possibly across the axis and back later),
+               so no interval may straddle such a bracket; the bracket itself
+               belongs to the inner node's event */
+            size_t np = 0, cr_end = c.ncr;
             for (size_t q = 0; q < ns; q++)
-                uvals[q] = U(&c, j, zd(&c, k, svals[q]));
-            for (size_t q = 0; q + 1 < ns && !c.over && !c.nomem; q++) {
-                /* a budget per logged step: an operand that flips back and
-                   forth (an inner node running along its cut with rounding
-                   noise) is reported as erratic, not refined forever */
+                pts[np++] = svals[q];
+            for (size_t x = cr_seg; x < cr_end; x++)
+                if (depends(&c, j, c.cr[x].node)) {
+                    if (!grow((void **)&pts, &apts, np + 1, sizeof *pts)) {
+                        c.nomem = 1;
+                        break;
+                    }
+                    pts[np++] = c.cr[x].sa;
+                    pts[np++] = c.cr[x].sb;
+                }
+            if (c.nomem)
+                break;
+            if (np > ns)
+                qsort(pts, np, sizeof *pts, cmp_double);
+            size_t nu = 0;
+            for (size_t q = 0; q < np; q++)
+                if (nu == 0 || pts[q] > pts[nu - 1])
+                    pts[nu++] = pts[q];
+            np = nu;
+            if (!grow((void **)&uvals, &auv, np, sizeof *uvals)) {
+                c.nomem = 1;
+                break;
+            }
+            for (size_t q = 0; q < np; q++)
+                uvals[q] = U(&c, j, zd(&c, k, pts[q]));
+            for (size_t q = 0; q + 1 < np && !c.over && !c.nomem; q++) {
+                int inside = 0; /* within the bracket of an inner jump */
+                for (size_t x = cr_seg; x < cr_end && !inside; x++)
+                    inside = depends(&c, j, c.cr[x].node) &&
+                             pts[q] >= c.cr[x].sa && pts[q + 1] <= c.cr[x].sb;
+                if (inside)
+                    continue;
+                /* a budget per interval: an operand that flips back and forth
+                   (an inner node running along its cut with rounding noise)
+                   is reported as erratic, not refined forever */
                 size_t ncr = c.ncr, nun = c.nun, noc = c.noc;
                 c.scan_start = c.evals;
                 c.erratic = 0;
-                scan(&c, j, k, svals[q], svals[q + 1], uvals[q], uvals[q + 1], 0);
+                scan(&c, j, k, pts[q], pts[q + 1], uvals[q], uvals[q + 1], 0);
                 if (c.erratic) {
                     c.ncr = ncr;
                     c.nun = nun;
                     c.noc = noc;
                     if (c.ner > 0 && c.er[c.ner - 1].node == (long)j &&
-                        c.er[c.ner - 1].seg == k && c.er[c.ner - 1].sb == svals[q])
-                        c.er[c.ner - 1].sb = svals[q + 1];
+                        c.er[c.ner - 1].seg == k && c.er[c.ner - 1].sb == pts[q])
+                        c.er[c.ner - 1].sb = pts[q + 1];
                     else
-                        push_spot(&c, &c.er, &c.ner, &c.aer, (long)j, k, svals[q],
-                                  svals[q + 1]);
+                        push_spot(&c, &c.er, &c.ner, &c.aer, (long)j, k, pts[q], pts[q + 1]);
                 }
             }
         }
@@ -795,7 +868,7 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
             goto cleanup;
         J.continued = sw_func_value(f, &c.g);
         J.ncause = nkeep;
-        J.cause = calloc(J.ncause, sizeof *J.cause);
+        J.cause = calloc(nkeep + c.m, sizeof *J.cause);
         if (J.cause == NULL) {
             st = sw_error_set(err, SW_ENOMEM, "out of memory");
             goto cleanup;
@@ -811,6 +884,28 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
             cz->operand = U(&c, cr->node, zd(&c, cr->seg, 0.5 * (cr->sa + cr->sb)));
             cz->node_before = node_value(&c, cr->node, zb, U(&c, cr->node, zb));
             cz->node_after = node_value(&c, cr->node, za, U(&c, cr->node, za));
+        }
+        /* outer nodes whose operand the jump of an inner cause carries across
+           the cut (it jumps from one side to the other without crossing) */
+        for (size_t j = 0; j < c.m; j++) {
+            int is_cause = 0, below = 0;
+            for (size_t y = 0; y < nkeep; y++) {
+                is_cause |= J.cause[y].node == j;
+                below |= depends(&c, j, J.cause[y].node);
+            }
+            if (is_cause || !below)
+                continue;
+            double complex zb = zd(&c, lo.k, lo.s), za = zd(&c, hi.k, hi.s);
+            double complex ub = U(&c, j, zb), ua = U(&c, j, za);
+            if (side(ub) == 0 || side(ua) == 0 || side(ub) == side(ua))
+                continue;
+            sw_audit_cause *cz = &J.cause[J.ncause++];
+            cz->node = j;
+            cz->carried = 1;
+            cz->downward = side(ub) > 0;
+            cz->operand = ub;
+            cz->node_before = node_value(&c, j, zb, ub);
+            cz->node_after = node_value(&c, j, za, ua);
         }
         sw_audit_jump **arr = jump ? &res.jump : &res.note;
         size_t *cnt = jump ? &res.njumps : &res.nnotes, *al = jump ? &aj : &an;
@@ -964,6 +1059,7 @@ sw_status sw_audit_formula(sw_audit *out, const sw_func *f, const sw_path *path,
     sw_audit_init(&res);
 cleanup:
     free(svals);
+    free(pts);
     free(uvals);
     free(ev_lo);
     free(ev_hi);
@@ -1066,9 +1162,14 @@ char *sw_audit_explain(char *buf, size_t n, const sw_func *f, const sw_audit_jum
         } else {
             snprintf(amount, sizeof amount, "to another branch");
         }
-        ADD("%sthe principal %s `%s` jumps %s where `%s` crosses the negative real axis "
-            "(from Im %s 0 to Im %s 0)", q ? "; " : "", what, txt, amount, op,
-            cz->downward ? ">" : "<", cz->downward ? "<" : ">");
+        if (cz->carried)
+            ADD("%sthis carries `%s` across the negative real axis (from Im %s 0 to Im %s 0), so "
+                "the principal %s `%s` jumps %s as well", q ? "; " : "", op,
+                cz->downward ? ">" : "<", cz->downward ? "<" : ">", what, txt, amount);
+        else
+            ADD("%sthe principal %s `%s` jumps %s where `%s` crosses the negative real axis "
+                "(from Im %s 0 to Im %s 0)", q ? "; " : "", what, txt, amount, op,
+                cz->downward ? ">" : "<", cz->downward ? "<" : ">");
     }
     if (j->cancels)
         ADD("; these jumps cancel in the formula, which stays continuous here");

@@ -293,8 +293,25 @@ static void test_nested(void **state)
                    "GSL gsl_complex_log, DLMF 4.2.7");
     TU_CHECK_CLOSE(r.a.jump[0].after, g_log(-s - 1), 1e-9, "limit from below",
                    "GSL gsl_complex_log, DLMF 4.2.7");
-    assert_int_equal(r.a.jump[0].ncause, 1);
-    assert_int_equal(r.a.jump[0].cause[0].node, 0); /* the inner root */
+    /* the inner root crosses; it carries sqrt(z)-1 from -1+0.71i to -1-0.71i,
+       across the cut of the outer logarithm */
+    assert_int_equal(r.a.jump[0].ncause, 2);
+    assert_int_equal(r.a.jump[0].cause[0].node, 0);
+    assert_false(r.a.jump[0].cause[0].carried);
+    assert_int_equal(r.a.jump[0].cause[1].node, 1);
+    assert_true(r.a.jump[0].cause[1].carried);
+    ar_clear(&r);
+    /* log(log(z)^2): where log z jumps by -2 pi i at z = -0.8, log(z)^2
+       (near -pi^2) is carried across the negative axis; later it crosses back
+       by itself where Re log z = 0, i.e. |z| = 1 (DLMF 4.2.3): on this path
+       at -0.8-0.6i (segment 1, s = 1/2) */
+    ar_audit(&r, "log(log(z)^2)", "-0.8+0.3i; -0.8-0.3i; -0.8-0.9i");
+    expect_count(&r, 2, "log(log(z)^2)", "DLMF 4.2.3");
+    expect_jump_at(&r, -0.8, "inner crossing", "DLMF 4.2.3");
+    expect_jump_at(&r, CMPLX(-0.8, -0.6), "outer crossing at |z| = 1", "DLMF 4.2.3");
+    TU_CHECK_CLOSE(r.a.jump[1].t, 1.5, 1e-10, "t of the outer crossing", "segment 1, s = 1/2");
+    assert_true(r.a.jump[0].ncause == 2 && r.a.jump[0].cause[1].carried);
+    assert_true(r.a.jump[1].ncause == 1 && !r.a.jump[1].cause[0].carried);
     ar_clear(&r);
 }
 

@@ -63,7 +63,8 @@ typedef struct sw_audit_opts {
 void sw_audit_opts_init(sw_audit_opts *o);
 
 /* One multivalued node whose principal operand crosses the negative real
- * axis at a discontinuity. */
+ * axis at a discontinuity (listed first), or is carried across it by the
+ * jump of an inner node (carried = 1, listed after). */
 typedef struct sw_audit_cause {
     size_t node;             /* index of the multivalued node (sw_expr_mv_text) */
     int downward;            /* 1: the operand goes from Im > 0 to Im < 0 (the
@@ -72,6 +73,9 @@ typedef struct sw_audit_cause {
     double complex operand;  /* the operand at the crossing (about real, < 0) */
     double complex node_before, node_after; /* the node's principal value on
                                 either side */
+    int carried;             /* 1: the operand does not cross by itself; the
+                                jump of an inner cause carries it across the
+                                cut (nested formulas), so this node jumps too */
 } sw_audit_cause;
 
 /* A place where the principal evaluation jumps (or where node jumps cancel). */

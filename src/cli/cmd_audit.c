@@ -90,6 +90,7 @@ static json_t *jump_json(const sw_func *f, const sw_audit_jump *j)
         json_object_set_new(c, "operand", json_cplx(cz->operand));
         json_object_set_new(c, "direction", json_string(cz->downward ? "from Im > 0 to Im < 0"
                                                                      : "from Im < 0 to Im > 0"));
+        json_object_set_new(c, "carried", json_boolean(cz->carried));
         json_object_set_new(c, "node_before", json_cplx(cz->node_before));
         json_object_set_new(c, "node_after", json_cplx(cz->node_after));
         json_array_append_new(causes, c);
