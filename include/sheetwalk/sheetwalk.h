@@ -11,4 +11,5 @@
 #include "sheetwalk/integrate.h"
 #include "sheetwalk/cuts.h"
 #include "sheetwalk/audit.h"
+#include "sheetwalk/sheets.h"
 #endif
