@@ -205,7 +205,7 @@ sw_status sw_track_run(sw_trace *out, const sw_func *f, const sw_germ *start,
     for (size_t k = 0; k + 1 < path->n; k++) {
         double complex a = displaced(path, k, scale), b = displaced(path, k + 1, scale);
         double len = cabs(b - a), s = 0;
-        int halvings = 0;
+        int halvings = 0, refused = 0;
         while (s < len) {
             double hh = fmin(h, len - s);
             /* a remainder of a few ulps is rounding, not a step of its own */
@@ -225,7 +225,11 @@ sw_status sw_track_run(sw_trace *out, const sw_func *f, const sw_germ *start,
                 s = last ? len : s + hh;
                 tr.steps++;
                 halvings = 0;
-                h = fmin(2 * hh, hmax);
+                /* grow only after a step that was accepted at the first try:
+                   right after a refusal the accepted length is about the
+                   largest safe one, and doubling it would be refused again */
+                h = fmin(refused ? hh : 2 * hh, hmax);
+                refused = 0;
                 if (opts->keep_log &&
                     log_push(&tr, (double)k + (last ? 1.0 : s / len), &g) != SW_OK) {
                     st = sw_error_set(err, SW_ENOMEM, "out of memory");
@@ -244,6 +248,7 @@ sw_status sw_track_run(sw_trace *out, const sw_func *f, const sw_germ *start,
                 goto cleanup;
             }
             tr.rejected++;
+            refused = 1;
             h = hh / 2;
             if (h < hmin) {
                 st = singular_error(err, f, why, target, k, 1);

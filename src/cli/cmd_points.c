@@ -25,8 +25,16 @@ int cmd_points(int argc, char **argv)
     if (rc < 0)
         rc = cli_load(&c, 0, &err);
     if (rc < 0) {
-        if (cli_get_points(&c, &pts, c.certify, &err) != SW_OK)
+        if (cli_get_points(&c, &pts, c.certify, &err) != SW_OK) {
             rc = cli_fail(&c, &err);
+        } else if (sw_func_kind_of(c.f) == SW_FUNC_CURVE && !pts->product_ok) {
+            /* the self-test of methods §2: never print permutations that fail it */
+            sw_error_set(&err, SW_EINTERNAL,
+                         "the ordered product of the local monodromies is not the identity: "
+                         "the permutations are not trustworthy and are not printed (try "
+                         "--certify)");
+            rc = cli_fail(&c, &err);
+        }
     }
     if (rc < 0) {
         if (c.json) {
