@@ -107,6 +107,7 @@ void sw_audit_opts_init(sw_audit_opts *o)
     o->jump_rel = 1e-9;
     o->value_tol = 1e-6;
     o->position_tol = 1e-6;
+    o->adapt_tol = 1;
     o->max_evals = 20000000;
 }
 
@@ -1443,29 +1444,22 @@ static double rel_dist(double complex a, double complex b)
     return s > 0 ? cabs(a - b) / s : 0;
 }
 
-/* Check one sample with the continued germ c->g already at its point. */
-static sw_status check_expr(ctx *c, sw_sample_check *k, double complex w, double tol,
-                            sw_error *err)
+/* Measure one sample with the continued germ c->g already at its point: the
+ * continued value and branch, and the sheet nearest to the value W. */
+static sw_status measure_expr(ctx *c, sw_sample_check *k, double complex w, int *same,
+                              double *second, sw_error *err)
 {
-    (void)err;
     size_t m = c->m;
     k->continued = sw_func_value(c->f, &c->g);
     k->ratio = w / k->continued;
     k->difference = w - k->continued;
+    k->cont_error = rel_dist(w, k->continued);
     k->continued_branch = calloc(m ? m : 1, sizeof *k->continued_branch);
     k->branch = calloc(m ? m : 1, sizeof *k->branch);
     if (k->continued_branch == NULL || k->branch == NULL)
         return sw_error_set(err, SW_ENOMEM, "out of memory");
     sw_func_node_branches(k->continued_branch, m, c->f, &c->g);
-    double d = rel_dist(w, k->continued);
-    if (d <= tol) {
-        k->on_branch = 1;
-        k->matched = 1;
-        k->error = d;
-        k->sheet_value = k->continued;
-        memcpy(k->branch, k->continued_branch, m * sizeof *k->branch);
-        return SW_OK;
-    }
+    *second = INFINITY;
     sw_germ h;
     if (sw_germ_init(&h, c->f) != SW_OK)
         return sw_error_set(err, SW_ENOMEM, "out of memory");
@@ -1474,11 +1468,20 @@ static sw_status check_expr(ctx *c, sw_sample_check *k, double complex w, double
     if (s2 == SW_OK) {
         k->sheet_value = sw_func_value(c->f, &h);
         k->error = rel_dist(w, k->sheet_value);
-        k->matched = k->error <= tol;
         sw_func_node_branches(k->branch, m, c->f, &h);
+        *same = rel_dist(k->sheet_value, k->continued) <= 1e-9;
+        if (*same) { /* the same sheet, perhaps under another branch index */
+            k->sheet_value = k->continued;
+            memcpy(k->branch, k->continued_branch, m * sizeof *k->branch);
+            k->error = k->cont_error;
+        } else {
+            *second = k->cont_error; /* the continued sheet is another candidate */
+        }
     } else {
+        /* two sheets tie for the value (or no sheet search is possible) */
         k->tie = s2 == SW_EAMBIGUOUS;
-        k->error = d;
+        *same = 0;
+        k->error = k->cont_error;
         k->sheet_value = CMPLX(NAN, NAN);
         free(k->branch);
         k->branch = NULL;
@@ -1487,8 +1490,8 @@ static sw_status check_expr(ctx *c, sw_sample_check *k, double complex w, double
     return SW_OK;
 }
 
-static sw_status check_curve(ctx *c, sw_sample_check *k, double complex w, double tol,
-                             sw_error *err)
+static sw_status measure_curve(ctx *c, sw_sample_check *k, double complex w, int *same,
+                               double *second, sw_error *err)
 {
     size_t n = sw_func_degree(c->f);
     double complex *fib = malloc((n ? n : 1) * sizeof *fib);
@@ -1499,6 +1502,7 @@ static sw_status check_curve(ctx *c, sw_sample_check *k, double complex w, doubl
     k->continued_sheet = c->g.sheet + 1;
     k->ratio = w / k->continued;
     k->difference = w - k->continued;
+    k->cont_error = rel_dist(w, k->continued);
     size_t best = 0;
     double d1 = INFINITY, d2 = INFINITY;
     for (size_t i = 0; i < n; i++) {
@@ -1511,19 +1515,19 @@ static sw_status check_curve(ctx *c, sw_sample_check *k, double complex w, doubl
             d2 = d;
         }
     }
-    k->on_branch = rel_dist(w, k->continued) <= tol;
+    k->sheet = n ? (int)best + 1 : 0;
     k->sheet_value = n ? fib[best] : CMPLX(NAN, NAN);
     k->error = d1;
-    k->tie = d2 <= tol;
-    k->matched = n > 0 && d1 <= tol && !k->tie;
-    k->sheet = n ? (int)best + 1 : 0;
-    if (k->on_branch && !k->tie) {
-        k->sheet = k->continued_sheet;
-        k->sheet_value = k->continued;
-        k->error = rel_dist(w, k->continued);
-    }
+    *second = d2;
+    *same = n > 0 && (int)best == c->g.sheet;
     free(fib);
     return SW_OK;
+}
+
+static int cmp_dbl(const void *pa, const void *pb)
+{
+    double a = *(const double *)pa, b = *(const double *)pb;
+    return a < b ? -1 : a > b;
 }
 
 sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_path *path,
@@ -1537,6 +1541,8 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
     }
     sw_sample_report rep;
     sw_sample_report_init(&rep);
+    int *same = NULL;
+    double *second = NULL, *scat = NULL;
     ctx c;
     sw_status st = ctx_init(&c, f, path, tr, o, err);
     if (st != SW_OK)
@@ -1544,7 +1550,10 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
     rep.nmv = c.m;
     rep.tolerance = o->value_tol;
     rep.c = calloc(s->n ? s->n : 1, sizeof *rep.c);
-    if (rep.c == NULL) {
+    same = calloc(s->n ? s->n : 1, sizeof *same);
+    second = calloc(s->n ? s->n : 1, sizeof *second);
+    scat = calloc(s->n ? s->n : 1, sizeof *scat);
+    if (rep.c == NULL || same == NULL || second == NULL || scat == NULL) {
         st = sw_error_set(err, SW_ENOMEM, "out of memory");
         goto cleanup;
     }
@@ -1612,10 +1621,47 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
             sw_error_prefix(err, "samples line %ld", sm->line);
             goto cleanup;
         }
-        st = sw_func_kind_of(f) == SW_FUNC_EXPR ? check_expr(&c, k, sm->w, o->value_tol, err)
-                                                 : check_curve(&c, k, sm->w, o->value_tol, err);
+        st = sw_func_kind_of(f) == SW_FUNC_EXPR
+                 ? measure_expr(&c, k, sm->w, &same[q], &second[q], err)
+                 : measure_curve(&c, k, sm->w, &same[q], &second[q], err);
         if (st != SW_OK)
             goto cleanup;
+    }
+
+    /* the tolerance: as given, or raised to ten times the median scatter of
+       the values around their nearest sheets (noisy data), at most 1e-2 */
+    double tol = o->value_tol;
+    size_t nd = 0;
+    for (size_t q = 0; q < s->n; q++)
+        if (isfinite(rep.c[q].error))
+            scat[nd++] = rep.c[q].error;
+    if (nd > 0) {
+        qsort(scat, nd, sizeof *scat, cmp_dbl);
+        rep.scatter = nd % 2 ? scat[nd / 2] : 0.5 * (scat[nd / 2 - 1] + scat[nd / 2]);
+        if (o->adapt_tol && 10 * rep.scatter > tol) {
+            tol = fmin(10 * rep.scatter, 1e-2);
+            rep.tolerance_raised = tol > o->value_tol;
+            if (!rep.tolerance_raised)
+                tol = o->value_tol;
+        }
+    }
+    rep.tolerance = tol;
+    for (size_t q = 0; q < s->n; q++) {
+        sw_sample_check *k = &rep.c[q];
+        k->on_branch = k->cont_error <= tol;
+        /* another sheet within the tolerance too: which one cannot be told */
+        if (second[q] <= tol || (!same[q] && k->error <= tol && k->on_branch))
+            k->tie = 1;
+        k->matched = !k->tie && k->error <= tol && (k->branch != NULL || k->sheet > 0);
+        if (k->on_branch && !k->tie) {
+            k->matched = 1;
+            k->sheet_value = k->continued;
+            k->error = k->cont_error;
+            if (k->continued_branch && k->branch)
+                memcpy(k->branch, k->continued_branch, rep.nmv * sizeof *k->branch);
+            if (k->continued_sheet)
+                k->sheet = k->continued_sheet;
+        }
         if (!k->on_branch)
             rep.off_branch++;
     }
@@ -1623,6 +1669,9 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
     *out = rep;
     sw_sample_report_init(&rep);
 cleanup:
+    free(same);
+    free(second);
+    free(scat);
     sw_sample_report_clear(&rep);
     ctx_clear(&c);
     return st;

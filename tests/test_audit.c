@@ -750,6 +750,58 @@ static void test_samples_planted(void **state)
     unlink(file);
 }
 
+static void test_samples_noisy(void **state)
+{
+    (void)state;
+    tu_rng rng;
+    tu_rng_init(&rng, 31337);
+    /* values with a relative noise of 3e-5, thirty times the default
+       tolerance: the tolerance is raised to ten times the median scatter and
+       exactly the planted sign flips are found */
+    const double complex v[] = {CMPLX(-2, 0.5), CMPLX(2, 0.5), CMPLX(2, 2), CMPLX(-2, 2)};
+    enum { N = 200 };
+    double complex factor[N];
+    for (int i = 0; i < N; i++)
+        factor[i] = (i % 37 == 5 || i == 100 || i == 101) ? -1 : 1;
+    char file[64];
+    write_csv(file, v, 4, N, cont_sqrt, factor, 3e-5, &rng);
+    sw_samples s;
+    sw_samples_init(&s);
+    sw_error err;
+    assert_int_equal(sw_samples_read_file(&s, file, &err), SW_OK);
+    ar r;
+    ar_track(&r, "sqrt(z^2-1)", 0, "-2+0.5i; 2+0.5i; 2+2i; -2+2i", NULL, 0);
+    assert_int_equal(r.st, SW_OK);
+    sw_sample_report rep;
+    sw_sample_report_init(&rep);
+    assert_int_equal(sw_audit_samples(&rep, r.f, &r.p, &r.tr, &s, NULL, &err), SW_OK);
+    assert_true(rep.tolerance_raised);
+    assert_true(rep.tolerance > 3e-5 && rep.tolerance < 1e-3);
+    size_t planted = 0;
+    for (int i = 0; i < N; i++) {
+        planted += factor[i] != 1;
+        if (rep.c[i].on_branch != (factor[i] == 1)) {
+            print_error("noisy sample %d: on_branch %d, planted %d\n", i, rep.c[i].on_branch,
+                        factor[i] != 1);
+            fail();
+        }
+        assert_true(rep.c[i].matched);
+    }
+    assert_int_equal(rep.off_branch, planted);
+    /* with the tolerance kept as given, the noise puts nearly every value on
+       no sheet */
+    sw_audit_opts o;
+    sw_audit_opts_init(&o);
+    o.adapt_tol = 0;
+    sw_sample_report_clear(&rep);
+    assert_int_equal(sw_audit_samples(&rep, r.f, &r.p, &r.tr, &s, &o, &err), SW_OK);
+    assert_true(rep.off_branch > N / 2);
+    sw_sample_report_clear(&rep);
+    ar_clear(&r);
+    sw_samples_clear(&s);
+    unlink(file);
+}
+
 static double complex cube_root(double complex z) { return g_cbrt(z); }
 
 static void test_samples_cube_roots(void **state)
@@ -796,6 +848,7 @@ static void test_samples_cube_roots(void **state)
     sw_audit_opts o;
     sw_audit_opts_init(&o);
     o.value_tol = 1e-10;
+    o.adapt_tol = 0; /* as given, not raised to the scatter */
     sw_sample_report_clear(&rep);
     assert_int_equal(sw_audit_samples(&rep, r.f, &r.p, &r.tr, &s, &o, &err), SW_OK);
     assert_true(rep.off_branch > 30);
@@ -895,6 +948,7 @@ int main(void)
         cmocka_unit_test(test_property_random_polylines),
         cmocka_unit_test(test_csv_parsing),
         cmocka_unit_test(test_samples_planted),
+        cmocka_unit_test(test_samples_noisy),
         cmocka_unit_test(test_samples_cube_roots),
         cmocka_unit_test(test_samples_off_path),
         cmocka_unit_test(test_input_checks),

@@ -54,6 +54,10 @@ typedef struct sw_audit_opts {
                             the node jumps cancel (default 1e-9) */
     double value_tol;    /* samples: a value w is on a sheet with value v when
                             |w - v| <= value_tol * max(|v|, |w|) (default 1e-6) */
+    int adapt_tol;       /* samples: raise value_tol to ten times the median
+                            relative distance of the values from their nearest
+                            sheets when that is larger (noisy data), at most
+                            to 1e-2 (default 1; 0 keeps value_tol as given) */
     double position_tol; /* samples: a point farther than position_tol * path
                             scale from the path is refused (default 1e-6) */
     size_t max_evals;    /* give up (SW_ETOLERANCE) after this many evaluations
@@ -201,7 +205,9 @@ typedef struct sw_sample_check {
     int on_branch;            /* the value lies on the continued branch */
     int matched;              /* a sheet was identified for the value (else it is
                                  on no sheet within the tolerance, or two tie) */
-    int tie;                  /* two sheets are equally near the value */
+    double cont_error;        /* relative distance from the value to the continued one */
+    int tie;                  /* two sheets are equally near the value, or both
+                                 within the tolerance */
     double error;             /* relative distance from the value to the sheet
                                  matched (or the nearest sheet) */
     double complex sheet_value; /* the value of that sheet at the point */
@@ -223,6 +229,9 @@ typedef struct sw_sample_report {
     size_t nmv;               /* entries per branch array (expressions) */
     size_t off_branch;        /* samples not on the continued branch */
     double tolerance;         /* the value tolerance used */
+    double scatter;           /* median relative distance of the values from
+                                 their nearest sheets */
+    int tolerance_raised;     /* the tolerance was raised above value_tol */
 } sw_sample_report;
 
 void sw_sample_report_init(sw_sample_report *r);

@@ -32,9 +32,11 @@ static const char audit_help[] =
     "  -c, --curve POLY      a polynomial P(z, w) (only with --samples)\n"
     "  -p, --path PATH       a path file, or inline vertices separated by ';'\n"
     "      --samples FILE    CSV of sampled values (header, then re_z,im_z,re_w,im_w)\n"
-    "      --tolerance TOL   relative tolerance of the sampled values (default 1e-6);\n"
-    "                        sample points may lie max(TOL, 1e-6) times the path's\n"
-    "                        scale away from the path\n"
+    "      --tolerance TOL   relative tolerance of the sampled values; without it,\n"
+    "                        1e-6, raised to ten times the values' median scatter\n"
+    "                        around their nearest sheets when that is larger (at\n"
+    "                        most 1e-2); sample points may lie max(TOL, 1e-6) times\n"
+    "                        the path's scale away from the path\n"
     "      --start W         continue from the sheet nearest W at the first vertex\n"
     "      --at Z=W          continue from the sheet nearest W at the vertex Z\n"
     "      --set NAME=VALUE  give a parameter a value (repeatable)\n"
@@ -147,7 +149,11 @@ static void print_samples(const sw_func *f, const sw_samples *s, const sw_sample
                           const char *file)
 {
     char b1[64], b2[64], buf[1024];
-    printf("\nsamples:  %zu from %s, tolerance %g (relative)\n", r->n, file, r->tolerance);
+    printf("\nsamples:  %zu from %s, tolerance %g (relative", r->n, file, r->tolerance);
+    if (r->tolerance_raised)
+        printf("; raised from the default to ten times the values' median scatter %.2g "
+               "around their nearest sheets", r->scatter);
+    printf(")\n");
     if (r->off_branch == 0) {
         printf("  all %zu samples lie on the continued branch\n", r->n);
         return;
@@ -304,6 +310,7 @@ int cmd_audit(int argc, char **argv)
             goto done;
         }
         ao.value_tol = tol;
+        ao.adapt_tol = 0; /* a tolerance given is used as given */
         ao.position_tol = fmax(tol, 1e-6);
     }
     if (c.samples && sw_samples_read_file(&smp, c.samples, &err) != SW_OK) {
@@ -377,6 +384,8 @@ int cmd_audit(int argc, char **argv)
             json_object_set_new(d, "samples", samples_json(c.f, &smp, &rep));
             json_object_set_new(d, "samples_off_branch", json_integer((json_int_t)rep.off_branch));
             json_object_set_new(d, "tolerance", json_real(rep.tolerance));
+            json_object_set_new(d, "tolerance_raised", json_boolean(rep.tolerance_raised));
+            json_object_set_new(d, "scatter", json_real(rep.scatter));
         }
         json_object_set_new(d, "certified", json_boolean(c.certify && tr.certified));
         json_object_set_new(d, "note", json_string(numerical_note));
