@@ -1235,6 +1235,7 @@ void sw_samples_clear(sw_samples *s)
     if (s == NULL)
         return;
     free(s->s);
+    free(s->origin);
     memset(s, 0, sizeof *s);
 }
 
@@ -1391,6 +1392,11 @@ sw_status sw_samples_parse(sw_samples *out, const char *text, size_t len, const 
         st = sw_error_set(err, SW_EINPUT, "%s: no samples after the header", name);
         goto fail;
     }
+    s.origin = strdup(name);
+    if (s.origin == NULL) {
+        st = sw_error_set(err, SW_ENOMEM, "out of memory");
+        goto fail;
+    }
     sw_samples_clear(out);
     *out = s;
     return SW_OK;
@@ -1521,6 +1527,16 @@ static sw_status measure_curve(ctx *c, sw_sample_check *k, double complex w, int
     *second = d2;
     *same = n > 0 && (int)best == c->g.sheet;
     free(fib);
+    /* the labels at this point (the engine's order there) */
+    sw_germ h;
+    sw_error e2;
+    if (sw_germ_init(&h, c->f) != SW_OK)
+        return sw_error_set(err, SW_ENOMEM, "out of memory");
+    if (n && sw_func_germ_at(&h, c->f, c->g.z, SW_BANK_NONE, &k->sheet_value, &e2) == SW_OK)
+        k->local_sheet = h.sheet + 1;
+    if (sw_func_germ_at(&h, c->f, c->g.z, SW_BANK_NONE, &k->continued, &e2) == SW_OK)
+        k->continued_local_sheet = h.sheet + 1;
+    sw_germ_clear(&h);
     return SW_OK;
 }
 
@@ -1577,10 +1593,10 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
         }
         if (!(dmin <= allowed)) {
             st = sw_error_set(err, SW_EINPUT,
-                              "samples line %ld: the point %.10g%+.10gi is %.3g away from the "
+                              "%s line %ld: the point %.10g%+.10gi is %.3g away from the "
                               "path (at most %.3g = %.3g times the path scale is accepted)",
-                              sm->line, creal(sm->z), cimag(sm->z), dmin, allowed,
-                              o->position_tol);
+                              s->origin ? s->origin : "samples", sm->line, creal(sm->z),
+                              cimag(sm->z), dmin, allowed, o->position_tol);
             goto cleanup;
         }
         size_t kb = 0;
@@ -1618,7 +1634,7 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
         k->distance = cabs(sm->z - zp(&c, kb, sb));
         if ((st = cont_at(&c, kb, sb, err)) != SW_OK ||
             (st = walk(&c, &c.g, sm->z, err)) != SW_OK) {
-            sw_error_prefix(err, "samples line %ld", sm->line);
+            sw_error_prefix(err, "%s line %ld", s->origin ? s->origin : "samples", sm->line);
             goto cleanup;
         }
         st = sw_func_kind_of(f) == SW_FUNC_EXPR
@@ -1659,8 +1675,10 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
             k->error = k->cont_error;
             if (k->continued_branch && k->branch)
                 memcpy(k->branch, k->continued_branch, rep.nmv * sizeof *k->branch);
-            if (k->continued_sheet)
+            if (k->continued_sheet) {
                 k->sheet = k->continued_sheet;
+                k->local_sheet = k->continued_local_sheet;
+            }
         }
         if (!k->on_branch)
             rep.off_branch++;
@@ -1712,7 +1730,11 @@ char *sw_sample_explain(char *buf, size_t n, const sw_func *f, const sw_sample_r
     }
     if (sw_func_kind_of(f) == SW_FUNC_CURVE) {
         ADD("on sheet %d instead of sheet %d (labels: the continuation of each sheet from the "
-            "path's start)", k->sheet, k->continued_sheet);
+            "path's start", k->sheet, k->continued_sheet);
+        if (k->local_sheet && k->continued_local_sheet)
+            ADD("; sheet %d instead of %d in the order at this point", k->local_sheet,
+                k->continued_local_sheet);
+        ADD(")");
         return buf;
     }
     double complex R = k->sheet_value / k->continued, D = k->sheet_value - k->continued;

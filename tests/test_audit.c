@@ -735,6 +735,12 @@ static void test_samples_planted(void **state)
             if (curve) {
                 assert_true(rep.c[i].sheet != rep.c[i].continued_sheet);
                 assert_true(rep.c[i].sheet >= 1 && rep.c[i].sheet <= 2);
+                /* at the point, sheets are ordered by real part (then
+                   imaginary part): the flipped value is the other one */
+                double complex other = -rep.c[i].continued;
+                int want_local = creal(other) < creal(rep.c[i].continued) ? 1 : 2;
+                assert_int_equal(rep.c[i].local_sheet, want_local);
+                assert_int_equal(rep.c[i].continued_local_sheet, 3 - want_local);
             } else {
                 assert_true(labs(rep.c[i].branch[0] - rep.c[i].continued_branch[0]) % 2 == 1);
                 char buf[512];

@@ -178,6 +178,7 @@ typedef struct sw_sample {
 typedef struct sw_samples {
     size_t n, alloc;
     sw_sample *s;
+    char *origin;          /* the file name (for messages), or NULL */
 } sw_samples;
 
 void sw_samples_init(sw_samples *s);
@@ -217,6 +218,9 @@ typedef struct sw_sample_check {
        sheet k at the path's start (labels travel with the continued roots);
        0 when unknown */
     int sheet, continued_sheet;
+    /* curves: the labels at the sample's own point instead (the engine's
+       order there: increasing real part, then imaginary part); 0 when unknown */
+    int local_sheet, continued_local_sheet;
     /* expressions: branch index of every multivalued node (0 = principal at
        the point) for the sheet matched and for the continued branch; NULL
        for curves; branch is NULL when no sheet was matched */

@@ -129,6 +129,14 @@ static json_t *samples_json(const sw_func *f, const sw_samples *s, const sw_samp
                                                    : json_null());
         json_object_set_new(o, "continued_sheet",
                             sheet_json(f, r, k->continued_branch, k->continued_sheet));
+        if (sw_func_kind_of(f) == SW_FUNC_CURVE) {
+            json_object_set_new(o, "local_sheet", k->matched && k->local_sheet
+                                                      ? json_integer(k->local_sheet)
+                                                      : json_null());
+            json_object_set_new(o, "continued_local_sheet",
+                                k->continued_local_sheet ? json_integer(k->continued_local_sheet)
+                                                         : json_null());
+        }
         json_object_set_new(o, "z", json_cplx(s->s[q].z));
         json_object_set_new(o, "w", json_cplx(s->s[q].w));
         json_object_set_new(o, "t", json_real(k->t));
