@@ -1540,6 +1540,18 @@ static sw_status measure_curve(ctx *c, sw_sample_check *k, double complex w, int
     return SW_OK;
 }
 
+/* Distance from Z to segment G of the path as given; *S receives the
+ * fraction of the nearest point. */
+static double project(const ctx *c, size_t g, double complex z, double *s)
+{
+    double complex a = c->path->z[g], ab = c->path->z[g + 1] - a;
+    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
+    double sg = L2 > 0 ? creal((z - a) * conj(ab)) / L2 : 0;
+    sg = sg < 0 ? 0 : sg > 1 ? 1 : sg;
+    *s = sg;
+    return cabs(z - zp(c, g, sg));
+}
+
 static int cmp_dbl(const void *pa, const void *pb)
 {
     double a = *(const double *)pa, b = *(const double *)pb;
@@ -1575,60 +1587,49 @@ sw_status sw_audit_samples(sw_sample_report *out, const sw_func *f, const sw_pat
     }
     double allowed = o->position_tol * c.scale;
     double tprev = 0;
+    size_t kprev = 0;
     for (size_t q = 0; q < s->n; q++) {
         const sw_sample *sm = &s->s[q];
         sw_sample_check *k = &rep.c[q];
         k->index = q;
         k->line = sm->line;
         rep.n = q + 1;
-        /* nearest points of the path as given; prefer the first at or after
-           the previous sample */
-        double dmin = INFINITY;
-        for (size_t g = 0; g < c.nseg; g++) {
-            double complex a = path->z[g], ab = path->z[g + 1] - a;
-            double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-            double sg = L2 > 0 ? creal((sm->z - a) * conj(ab)) / L2 : 0;
-            sg = sg < 0 ? 0 : sg > 1 ? 1 : sg;
-            dmin = fmin(dmin, cabs(sm->z - zp(&c, g, sg)));
-        }
-        if (!(dmin <= allowed)) {
-            st = sw_error_set(err, SW_EINPUT,
-                              "%s line %ld: the point %.10g%+.10gi is %.3g away from the "
-                              "path (at most %.3g = %.3g times the path scale is accepted)",
-                              s->origin ? s->origin : "samples", sm->line, creal(sm->z),
-                              cimag(sm->z), dmin, allowed, o->position_tol);
-            goto cleanup;
-        }
+        /* place the point on the path as given: the first passage within the
+           allowed distance at or after the previous sample (a forward search
+           from its segment, so that samples in path order cost little), else
+           the nearest passage anywhere */
         size_t kb = 0;
-        double sb = 0, tb = INFINITY, tnear = INFINITY, dnear = INFINITY;
-        size_t kn = 0;
-        double sn = 0;
-        for (size_t g = 0; g < c.nseg; g++) {
-            double complex a = path->z[g], ab = path->z[g + 1] - a;
-            double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-            double sg = L2 > 0 ? creal((sm->z - a) * conj(ab)) / L2 : 0;
-            sg = sg < 0 ? 0 : sg > 1 ? 1 : sg;
-            double d = cabs(sm->z - zp(&c, g, sg));
-            if (d > allowed)
-                continue;
-            double t = (double)g + sg;
-            if (d < dnear) {
-                dnear = d;
-                tnear = t;
-                kn = g;
-                sn = sg;
-            }
-            if (t >= tprev - 1e-12 && t < tb) {
-                tb = t;
+        double sb = 0, tb = INFINITY;
+        for (size_t g = kprev; g < c.nseg; g++) {
+            double sg, d = project(&c, g, sm->z, &sg);
+            if (d <= allowed && (double)g + sg >= tprev - 1e-12) {
+                tb = (double)g + sg;
                 kb = g;
                 sb = sg;
+                break;
             }
         }
         if (tb == INFINITY) {
-            tb = tnear;
-            kb = kn;
-            sb = sn;
+            double dmin = INFINITY;
+            for (size_t g = 0; g < c.nseg; g++) {
+                double sg, d = project(&c, g, sm->z, &sg);
+                if (d < dmin) {
+                    dmin = d;
+                    tb = (double)g + sg;
+                    kb = g;
+                    sb = sg;
+                }
+            }
+            if (!(dmin <= allowed)) {
+                st = sw_error_set(err, SW_EINPUT,
+                                  "%s line %ld: the point %.10g%+.10gi is %.3g away from the "
+                                  "path (at most %.3g = %.3g times the path scale is accepted)",
+                                  s->origin ? s->origin : "samples", sm->line, creal(sm->z),
+                                  cimag(sm->z), dmin, allowed, o->position_tol);
+                goto cleanup;
+            }
         }
+        kprev = kb;
         tprev = tb;
         k->t = tb;
         k->distance = cabs(sm->z - zp(&c, kb, sb));
