@@ -1172,7 +1172,10 @@ char *sw_audit_explain(char *buf, size_t n, const sw_func *f, const sw_audit_jum
                 "(from Im %s 0 to Im %s 0)", q ? "; " : "", what, txt, amount, op,
                 cz->downward ? ">" : "<", cz->downward ? "<" : ">");
     }
-    if (j->cancels)
+    if (j->cancels && j->ncause == 1)
+        ADD("; the formula does not change across it (the jump is trivial here, or undone by "
+            "the rest of the formula)");
+    else if (j->cancels)
         ADD("; these jumps cancel in the formula, which stays continuous here");
     else if (j->endpoint == -1)
         ADD("; the path starts on the cut, so the value at its first point is taken on the "
