@@ -61,8 +61,8 @@ static const double EPS = 2.220446049250313e-16;
 #define RATIO_TOL 1e-8     /* two radii agree on the ratio after q turns (relative) */
 #define SAME_OPERAND 1e-9  /* a turn left an operand unchanged (relative) */
 #define RADIUS_RETRIES 3   /* shrink the loop radii (by 16) this often before giving up */
-#define GJ_FIRST 6         /* Gauss-Jacobi orders 6, 12, 24, 48 */
-#define GJ_LAST 48
+#define GJ_FIRST 4         /* Gauss-Jacobi orders 4, 8, 16, 32, 64 */
+#define GJ_LAST 64
 #define SPLIT_DEPTH 6      /* Jacobi zone [0, X] shrinks to [0, X/4^6] at most */
 #define BRIDGE_INSET 1e-9  /* half-circle radius (relative to the path scale) that
                               carries the branch past a marked interior vertex */
@@ -102,6 +102,7 @@ const char *sw_end_rule_name(sw_end_rule r)
     switch (r) {
     case SW_RULE_JACOBI: return "gauss-jacobi";
     case SW_RULE_QAWS: return "qaws";
+    case SW_RULE_LAGUERRE: return "gauss-laguerre";
     case SW_RULE_TANH_SINH: return "tanh-sinh";
     default: return "none";
     }
@@ -616,8 +617,12 @@ static int loop_once(ictx *c, const zmap *m, sw_germ *g, double r)
     sw_error e;
     if (sw_path_push(&p, g->z, SW_BANK_NONE, &e) != SW_OK)
         goto done;
-    for (int k = 1; k < LOOP_VERTICES; k++) {
-        double a = 2 * PI * k / LOOP_VERTICES;
+    /* curve steps may turn by up to about pi around a branch point (roots
+       move less than half their separation); expression steps by 1/2 radian
+       per order of the operand's zero (the ratio test) */
+    int nv = c->curve ? LOOP_VERTICES / 2 : LOOP_VERTICES;
+    for (int k = 1; k < nv; k++) {
+        double a = 2 * PI * k / nv;
         if (sw_path_push(&p, map_z(m, r * CMPLX(cos(a), sin(a))), SW_BANK_NONE, &e) != SW_OK)
             goto done;
     }
@@ -700,7 +705,7 @@ static int slope_estimate(ictx *c, const zmap *m, double X, double *an, int *zer
     return 0;
 }
 
-#define NRADII 6           /* loop radii X0/16, X0/16^2, ..., X0/16^6 */
+#define NRADII 4           /* loop radii X0/16, X0/256, X0/4096, X0/65536 */
 
 /* Classify the end x = 0 of map M (the zone reaches at most X0).
  *
@@ -727,7 +732,7 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
     long *shift = NULL;
     sw_germ g[NRADII], l[NRADII];
     int ng = 0, rc = 0;
-    double complex F0[NRADII], Fk[NRADII][3];
+    double complex F0[NRADII], Fk[NRADII][3], x0h[NRADII];
     int shiftok[NRADII], alive[NRADII];
     if (c->expr && c->nmv) {
         shift = calloc(NRADII * c->nmv, sizeof *shift);
@@ -743,8 +748,7 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
             goto done;
         }
     for (int j = 0; j < nr; j++) {
-        double complex xh;
-        if (eval_F(c, m, r[j], &F0[j], &xh) != 0) {
+        if (eval_F(c, m, r[j], &F0[j], &x0h[j]) != 0) {
             rc = -1;
             goto done;
         }
@@ -867,8 +871,30 @@ numeric:
         /* the integer part of alpha from the decay inside the reach */
         double an;
         int zero;
-        if (slope_estimate(c, m, ei->kind == END_REGULAR || ei->kind == END_OTHER ? X0 :
-                                 fmin(X0, ei->reach), &an, &zero) != 0) {
+        /* from the ladder's own values inside the reach (radii 16 apart),
+           else from fresh samples */
+        int top = 0;
+        while (top < nr && r[top] > ei->reach * (1 + 1e-12))
+            top++;
+        double lam[NRADII];
+        int nl = 0;
+        for (int j = top; j + 1 < nr; j++)
+            if (F0[j] != 0 && F0[j + 1] != 0 && finite_c(F0[j]) && finite_c(F0[j + 1]))
+                lam[nl++] = log(cabs(F0[j]) / cabs(F0[j + 1])) /
+                            log(cabs(x0h[j]) / cabs(x0h[j + 1]));
+        zero = 0;
+        if (nl >= 2) {
+            an = lam[nl - 1];
+            if (nl >= 3) {
+                double den = lam[nl - 1] - 2 * lam[nl - 2] + lam[nl - 3];
+                if (fabs(den) > 1e-12) {
+                    double ait = lam[nl - 1] - (lam[nl - 1] - lam[nl - 2]) *
+                                                   (lam[nl - 1] - lam[nl - 2]) / den;
+                    if (isfinite(ait) && fabs(ait - lam[nl - 1]) < 0.5)
+                        an = ait;
+                }
+            }
+        } else if (slope_estimate(c, m, fmin(X0, ei->reach), &an, &zero) != 0) {
             rc = -1;
             goto done;
         }
@@ -922,8 +948,9 @@ static int probe_noise(ictx *c, zmap *m, const endinfo *ei, double X)
     m->rfac = EPS * (1 + cabs(a));
     m->eta = 0;
     m->xeta = 0;
-    if (!finite_c(a))
-        return 0;
+    if (!finite_c(a) || m->inf || (m->base == 0 && c->curve == NULL))
+        return 0; /* no cancellation at 0 or infinity (curves: roots near a
+                     branch point are measured anyway) */
     double xp = fmin(X, ei->reach) * 1e-4, d = 1e-6;
     double complex G[3];
     for (int k = 0; k < 3; k++) {
@@ -940,6 +967,54 @@ static int probe_noise(ictx *c, zmap *m, const endinfo *ei, double X)
     return 0;
 }
 
+/* ------------------------------------------------------- fixed rules */
+
+/* GSL computes the nodes and weights of a Gauss rule by an eigenvalue
+ * problem, O(n^2): about 50 us for 32 nodes, more than the integrand values
+ * of a typical end.  The last few rules of this thread are kept (a family of
+ * integrals of one function reuses its exponents); they live until the
+ * thread ends. */
+#define RULE_CACHE 8
+
+typedef struct rule_entry {
+    const gsl_integration_fixed_type *type;
+    size_t n;
+    double a, b;
+    gsl_integration_fixed_workspace *w;
+    unsigned long used;
+} rule_entry;
+
+static _Thread_local rule_entry rule_cache[RULE_CACHE];
+static _Thread_local unsigned long rule_clock;
+
+static const gsl_integration_fixed_workspace *fixed_rule(const gsl_integration_fixed_type *type,
+                                                         size_t n, double a, double b)
+{
+    rule_entry *old = &rule_cache[0];
+    for (int k = 0; k < RULE_CACHE; k++) {
+        rule_entry *e = &rule_cache[k];
+        if (e->w && e->type == type && e->n == n && e->a == a && e->b == b) {
+            e->used = ++rule_clock;
+            return e->w;
+        }
+        if (e->used < old->used)
+            old = e;
+    }
+    /* Jacobi: weight (1-x)^a x^b on [0, 1]; Laguerre: e^(-x) on [0, inf) */
+    gsl_integration_fixed_workspace *w = gsl_integration_fixed_alloc(type, n, 0.0, 1.0, a, b);
+    if (w == NULL)
+        return NULL;
+    if (old->w)
+        gsl_integration_fixed_free(old->w);
+    old->type = type;
+    old->n = n;
+    old->a = a;
+    old->b = b;
+    old->w = w;
+    old->used = ++rule_clock;
+    return w;
+}
+
 /* ------------------------------------------------------- Gauss-Jacobi */
 
 /* One Gauss-Jacobi rule of order N for int_0^X F dx at a pure end (A, q),
@@ -949,11 +1024,11 @@ static int gj_rule(ictx *c, const zmap *m, const zmap *mb, double X, int q, doub
                    double beta, int n, double complex *Iv, double *absum, double *rnd)
 {
     double gam = mb ? alpha : q * (alpha + 1) - 1;
-    gsl_integration_fixed_workspace *w = gsl_integration_fixed_alloc(
-        gsl_integration_fixed_jacobi, (size_t)n, 0.0, 1.0, mb ? beta : 0.0, gam);
+    const gsl_integration_fixed_workspace *w =
+        fixed_rule(gsl_integration_fixed_jacobi, (size_t)n, mb ? beta : 0.0, gam);
     if (w == NULL)
         return fail(c, SW_EINTERNAL, "Gauss-Jacobi rule not available for these exponents"), -1;
-    const double *s = gsl_integration_fixed_nodes(w), *wt = gsl_integration_fixed_weights(w);
+    const double *s = w->x, *wt = w->weights;
     double complex sum = 0;
     double asum = 0, rsum = 0;
     int rc = 0;
@@ -982,7 +1057,6 @@ static int gj_rule(ictx *c, const zmap *m, const zmap *mb, double X, int q, doub
             kap = fmax(kap, relnoise(mb, c->g.z));
         rsum += fabs(wt[j]) * cabs(H) * kap;
     }
-    gsl_integration_fixed_free(w);
     double fac = mb ? 1.0 : q * pow(X, alpha + 1);
     *Iv = fac * sum;
     *absum = fac * asum;
@@ -995,13 +1069,20 @@ static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double 
                 double beta, double tol_abs, double complex *Iv, double *err, int *ok)
 {
     double complex prev = 0, cur = 0;
-    double asum = 0, rnd = 0;
+    double asum = 0, rnd = 0, dprev = INFINITY;
     *ok = 0;
     for (int n = GJ_FIRST; n <= GJ_LAST; n *= 2) {
         if (gj_rule(c, m, mb, X, q, alpha, beta, n, &cur, &asum, &rnd) != 0)
             return -1;
         if (n > GJ_FIRST) {
-            double e = cabs(cur - prev) + 50 * EPS * asum;
+            /* H is analytic near [0, X]: the error of the rule falls
+               geometrically, squaring (in relative terms) with each doubling
+               of n, so the error of the newer rule is about d^2 / dprev
+               (d, dprev: the last two differences); a factor 10 of safety,
+               and never more than d itself */
+            double d = cabs(cur - prev);
+            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
+            e += 50 * EPS * asum;
             double tol = target(c, tol_abs, cabs(cur), asum);
             c->l1 = asum;
             *Iv = cur;
@@ -1014,6 +1095,7 @@ static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double 
                 *ok = 1;
                 return 0;
             }
+            dprev = d;
         }
         prev = cur;
     }
@@ -1096,6 +1178,88 @@ done:
     if (w)
         gsl_integration_workspace_free(w);
     return rc;
+}
+
+/* ------------------------------------------------------- Gauss-Laguerre */
+
+/* One Gauss-Laguerre rule of order N for a logarithmic end:
+ *   int_0^X F dx = X^(alpha+1)/(alpha+1) int_0^inf e^(-u) G(X e^(-u/(alpha+1))) du
+ * with G = F / x^alpha = A(x) log x + B(x), a polynomial of degree 1 in u plus
+ * terms decaying like exp(-k u/(alpha+1)).  A node closer to the end than
+ * the tracked line reaches is evaluated where the line starts (x^) and moved
+ * to its own x with the logarithm's coefficient A(x^) (A, B analytic). */
+static int lag_rule(ictx *c, const zmap *m, const endinfo *ei, double X, int n,
+                    double complex *Iv, double *absum, double *rnd)
+{
+    const gsl_integration_fixed_workspace *w =
+        fixed_rule(gsl_integration_fixed_laguerre, (size_t)n, 0.0, 0.0);
+    if (w == NULL)
+        return fail(c, SW_EINTERNAL, "Gauss-Laguerre rule not available"), -1;
+    const double *u = w->x, *wt = w->weights;
+    double ap1 = creal(ei->alpha) + 1;
+    double complex sum = 0;
+    double asum = 0, rsum = 0;
+    int rc = 0;
+    for (int j = 0; j < n && rc == 0; j++) {
+        double lx = log(X) - u[j] / ap1; /* log of the node x */
+        double complex F, xh;
+        if (eval_F(c, m, exp(lx), &F, &xh) != 0) {
+            rc = -1;
+            break;
+        }
+        double complex xa = cpow(xh, ei->alpha);
+        double complex G = F / xa;
+        double complex dl = lx - clog(xh);
+        if (cabs(dl) > 1e-12) {
+            double complex F1 = eval_shifted(c, m, &c->g, ei->shift, 1);
+            double complex A = (F1 / ei->mu - F) / CMPLX(0.0, 2 * PI) / xa;
+            G += A * dl;
+        }
+        if (!finite_c(G)) {
+            rc = -1;
+            fail(c, SW_ESINGULAR, "the integrand is not finite at a quadrature point next to "
+                                  "a logarithmic end");
+            break;
+        }
+        sum += wt[j] * G;
+        asum += wt[j] * cabs(G);
+        rsum += wt[j] * cabs(G) * relnoise(m, c->g.z);
+    }
+    double fac = pow(X, ap1) / ap1;
+    *Iv = fac * sum;
+    *absum = fac * asum;
+    *rnd = fac * rsum;
+    return rc;
+}
+
+/* Orders 8, 16, 32 until the error estimate (as for Gauss-Jacobi) is met;
+ * *OK 0 when it is not (the caller falls back to QAWS). */
+static int lag_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol_abs,
+                 double complex *Iv, double *err, int *ok)
+{
+    double complex prev = 0, cur = 0;
+    double asum = 0, rnd = 0, dprev = INFINITY;
+    *ok = 0;
+    for (int n = 8; n <= 32; n *= 2) {
+        if (lag_rule(c, m, ei, X, n, &cur, &asum, &rnd) != 0)
+            return -1;
+        if (n > 8) {
+            double d = cabs(cur - prev);
+            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
+            e += 50 * EPS * asum;
+            double tol = target(c, tol_abs, cabs(cur), asum);
+            c->l1 = asum;
+            *Iv = cur;
+            *err = e + rnd;
+            if (e <= fmax(tol, 2 * rnd)) {
+                *ok = 1;
+                return 0;
+            }
+            dprev = d;
+        }
+        prev = cur;
+    }
+    return 0;
 }
 
 /* ----------------------------------------------------------- tanh-sinh */
@@ -1262,6 +1426,13 @@ static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int
         return qag_map(c, m, 0, X, tol_abs, val, abserr, ok);
     }
     if (ei->kind == END_LOG && creal(ei->alpha) > -1) {
+        if (cimag(ei->alpha) == 0) {
+            *rule = SW_RULE_LAGUERRE;
+            if (lag_c(c, m, ei, X, tol_abs, val, abserr, ok) != 0)
+                return -1;
+            if (*ok)
+                return 0; /* else QAWS (the values spent are still counted) */
+        }
         *rule = SW_RULE_QAWS;
         return qaws_log(c, m, ei, X, tol_abs, val, abserr, ok);
     }
@@ -1356,6 +1527,7 @@ static const char *rule_method(sw_end_rule r)
     switch (r) {
     case SW_RULE_JACOBI: return "gauss-jacobi";
     case SW_RULE_QAWS: return "qaws";
+    case SW_RULE_LAGUERRE: return "gauss-laguerre";
     case SW_RULE_TANH_SINH: return "tanh-sinh";
     default: return "gauss-kronrod";
     }
@@ -1548,9 +1720,21 @@ static int circle_eval(void *arg, double tau, double complex *v, double complex 
     (void)aux;
     double frac = tau / (2 * PI);
     double t = frac * pc->ncircle;
-    sw_error e;
-    if (sw_trace_germ_at(&c->g, &l->tr, c->f, t, &l->path, &e) != SW_OK)
-        return fail(c, e.code, e.msg), -1;
+    /* the logged germ nearest below t (the dense log, as sw_trace_germ_at
+       reads it, without its per-call measure of a long path) */
+    const sw_trace *tr = &l->tr;
+    size_t lo = 0, hi = tr->nlog - 1;
+    while (lo < hi) {
+        size_t mid = (lo + hi + 1) / 2;
+        if (tr->t[mid] <= t)
+            lo = mid;
+        else
+            hi = mid - 1;
+    }
+    c->g.z = tr->z[lo];
+    c->g.sheet = tr->sheet[lo];
+    c->g.bank = SW_BANK_NONE;
+    memcpy(c->g.s, tr->state + lo * tr->len, tr->len * sizeof *c->g.s);
     double th = pc->theta0 + pc->orient * tau;
     double complex z = pc->centre + pc->radius * CMPLX(cos(th), sin(th));
     if (tau == 0 || tau == 2 * PI)
@@ -1613,6 +1797,7 @@ static int integrate_circle(ictx *c, const piece *pc, int *all_ok, double *tol_s
         }
         T = S * (2 * PI / (double)M);
         ok = 0;
+        double dprev = INFINITY;
         for (; M <= TRAPEZOID_MAX / 2; M *= 2) {
             double complex Sn = 0;
             for (size_t j = 0; j < M; j++) {
@@ -1626,7 +1811,13 @@ static int integrate_circle(ictx *c, const piece *pc, int *all_ok, double *tol_s
             S += Sn;
             double complex T2 = S * (2 * PI / (2 * (double)M));
             c->l1 = A * 2 * PI / (2 * (double)M);
-            err = cabs(T2 - T) + 50 * EPS * c->l1;
+            /* geometric convergence: the error squares (relatively) with
+               each doubling, so the newer sum's error is about d^2 / dprev
+               (a factor 10 of safety, never more than d) */
+            double d = cabs(T2 - T);
+            err = (isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d) +
+                  50 * EPS * c->l1;
+            dprev = d;
             T = T2;
             if (err <= target(c, *tol_share, cabs(T), c->l1) && M >= 32) {
                 ok = 1;
@@ -1710,18 +1901,28 @@ static int point_singular(ictx *c, double complex z, int bank)
     return 0;
 }
 
+/* Curves: the 1-based label of the germ's sheet over its point, i.e. the
+ * position of its root in the fiber sorted into the documented sheet order
+ * (the order sw_func_germ_at uses). */
 static int sheet_label(const sw_func *f, const sw_germ *g)
 {
     if (sw_func_kind_of(f) != SW_FUNC_CURVE)
         return 0;
-    sw_germ h;
-    sw_error e;
+    size_t n = sw_func_degree(f);
+    double complex *v = malloc(n * sizeof *v);
+    if (v == NULL)
+        return 0;
+    memcpy(v, g->s, n * sizeof *v);
+    double complex w = g->s[g->sheet];
+    sw_curve_sort_fiber(v, n);
     int lab = 0;
-    double complex w = sw_func_value(f, g);
-    if (sw_germ_init(&h, f) == SW_OK && sw_func_germ_at(&h, f, g->z, SW_BANK_NONE, &w, &e) ==
-                                            SW_OK)
-        lab = h.sheet + 1;
-    sw_germ_clear(&h);
+    double best = INFINITY;
+    for (size_t i = 0; i < n; i++)
+        if (cabs(v[i] - w) < best) {
+            best = cabs(v[i] - w);
+            lab = (int)i + 1;
+        }
+    free(v);
     return lab;
 }
 
@@ -1864,9 +2065,11 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
     size_t fixline = 0; /* the branch is fixed at the start of this line (== nlines: end) */
 
     if (is_circle) {
-        /* track a fine polygon of the same circle; the user's polygon decides
-           the branch at the end, and the two must agree */
-        size_t N = path->n - 1, Nt = N * 4 < 256 ? 256 : N * 4;
+        /* track a polygon of at least 64 vertices on the circle (the user's
+           own when it has that many); quadrature points are reached from it
+           by a short straight step (at most 0.12% of the radius).  A coarser
+           user polygon decides the branch at the end, and the two must agree */
+        size_t N = path->n - 1, Nt = N < 64 ? 64 : N;
         double complex *zz = malloc((Nt + 1) * sizeof *zz);
         if (zz == NULL) {
             st = sw_error_set(err, SW_ENOMEM, "out of memory");
@@ -1899,21 +2102,24 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
             goto cleanup;
         }
         sw_germ_copy(&gp, &g0);
-        sw_trace ptr;
-        sw_trace_init(&ptr);
-        to.keep_log = 0;
-        st = sw_track_run(&ptr, f, &gp, path, &to, err);
-        double complex wpoly = st == SW_OK ? sw_func_value(f, &ptr.vert[ptr.nvert - 1]) : 0;
-        if (st == SW_OK)
-            c.steps += ptr.steps;
-        sw_trace_clear(&ptr);
+        double complex wpoly = 0;
+        if (Nt != N) {
+            sw_trace ptr;
+            sw_trace_init(&ptr);
+            to.keep_log = 0;
+            st = sw_track_run(&ptr, f, &gp, path, &to, err);
+            wpoly = st == SW_OK ? sw_func_value(f, &ptr.vert[ptr.nvert - 1]) : 0;
+            if (st == SW_OK)
+                c.steps += ptr.steps;
+            sw_trace_clear(&ptr);
+        }
         if (st == SW_OK)
             st = track_lines(&c, &gp, 0, 1, 1, err);
         double complex wfine = sw_func_value(f, &gp);
         sw_germ_clear(&gp);
         if (st != SW_OK)
             goto cleanup;
-        if (cabs(wfine - wpoly) > 1e-8 * fmax(cabs(wpoly), 1e-300)) {
+        if (Nt != N && cabs(wfine - wpoly) > 1e-8 * fmax(cabs(wpoly), 1e-300)) {
             /* a singular point between polygon and circle: integrate the polygon */
             sw_path_clear(&c.lines[0].path);
             sw_trace_clear(&c.lines[0].tr);
@@ -1970,118 +2176,136 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                               "point inside the path; fix it at another vertex", vertex + 1);
             goto cleanup;
         }
-        /* pieces and their tracked lines, in path order */
-        double inset = SW_INTEGRATE_INSET * S, bridge = BRIDGE_INSET * S;
-        double fine = 1e-15; /* tracker floor next to singular ends (relative) */
-        for (size_t i = 0; i + 1 < nst; i++) {
-            const station *sa = &stations[i], *sb = &stations[i + 1];
-            piece *p = &pcs[npc];
-            if (sa->inf || sb->inf) {
-                const station *fin = sa->inf ? sb : sa, *inf = sa->inf ? sa : sb;
-                p->kind = sa->inf ? SW_PIECE_RAY_IN : SW_PIECE_RAY_OUT;
-                p->a = fin->z;
-                p->b = inf->dir;
-                p->L = inf->L;
-                double umax = p->L * (1 / RAY_DEPTH - 1);
-                double us[80];
-                size_t nu = 0;
-                us[nu++] = 0;
-                for (double u = p->L; u < umax && nu < 70; u *= RAY_CHUNK)
-                    us[nu++] = u;
-                us[nu++] = umax;
-                p->line0 = c.nlines;
-                for (size_t k = 0; k + 1 < nu; k++) {
-                    size_t j = sa->inf ? nu - 1 - k : k;
-                    double complex zz[2] = {p->a + p->b * us[j],
-                                            p->a + p->b * us[sa->inf ? j - 1 : j + 1]};
-                    if (add_line(&c, zz, NULL, 2, 1, opts->track.min_step) != 0)
+        /* tracking starts INSET from a singular end of the path; an engine
+           that cannot step that close to a branch point (colliding roots of
+           a curve) gets a start 1000 times farther, twice at most */
+        for (double boost = 1;; boost *= 1000) {
+            int retry = boost < 1e6 && (stations[0].sing || stations[nst - 1].sing);
+            for (size_t k = 0; k < c.nlines; k++) {
+                sw_path_clear(&c.lines[k].path);
+                sw_trace_clear(&c.lines[k].tr);
+            }
+            c.nlines = 0;
+            npc = 0;
+            memset(pcs, 0, (n + 4) * sizeof *pcs);
+            /* pieces and their tracked lines, in path order */
+            double inset = SW_INTEGRATE_INSET * S * boost, bridge = BRIDGE_INSET * S;
+            double fine = 1e-15; /* tracker floor next to singular ends (relative) */
+            for (size_t i = 0; i + 1 < nst; i++) {
+                const station *sa = &stations[i], *sb = &stations[i + 1];
+                piece *p = &pcs[npc];
+                if (sa->inf || sb->inf) {
+                    const station *fin = sa->inf ? sb : sa, *inf = sa->inf ? sa : sb;
+                    p->kind = sa->inf ? SW_PIECE_RAY_IN : SW_PIECE_RAY_OUT;
+                    p->a = fin->z;
+                    p->b = inf->dir;
+                    p->L = inf->L;
+                    double umax = p->L * (1 / RAY_DEPTH - 1);
+                    double us[80];
+                    size_t nu = 0;
+                    us[nu++] = 0;
+                    for (double u = p->L; u < umax && nu < 70; u *= RAY_CHUNK)
+                        us[nu++] = u;
+                    us[nu++] = umax;
+                    p->line0 = c.nlines;
+                    for (size_t k = 0; k + 1 < nu; k++) {
+                        size_t j = sa->inf ? nu - 1 - k : k;
+                        double complex zz[2] = {p->a + p->b * us[j],
+                                                p->a + p->b * us[sa->inf ? j - 1 : j + 1]};
+                        if (add_line(&c, zz, NULL, 2, 1, opts->track.min_step) != 0)
+                            goto fail_ctx;
+                    }
+                    p->nline = c.nlines - p->line0;
+                    npc++;
+                    continue;
+                }
+                double complex a = sa->z, b = sb->z;
+                if (a == b)
+                    continue;
+                p->kind = SW_PIECE_SEGMENT;
+                p->a = a;
+                p->b = b;
+                p->sing_a = sa->sing;
+                p->sing_b = sb->sing;
+                double complex u = (b - a) / cabs(b - a);
+                double ia = !sa->sing ? 0 : (i == 0 ? inset : bridge);
+                double ib = !sb->sing ? 0 : (i + 2 == nst ? inset : bridge);
+                if (ia + ib >= 0.5 * cabs(b - a)) {
+                    st = sw_error_set(err, SW_EINPUT,
+                                      "a segment of length %.3g next to a singular point is too "
+                                      "short for the path's scale %.3g", cabs(b - a), S);
+                    goto cleanup;
+                }
+                double complex zz[2] = {a + u * ia, b - u * ib};
+                int bk[2] = {sa->bank, sb->bank};
+                if (i > 0 && sa->sing && c.nlines > 0) {
+                    /* carry the branch past the marked singular point on a small
+                       detour on the marked side */
+                    double complex bz[3] = {c.lines[c.nlines - 1].q,
+                                            a + CMPLX(0.0, (double)sa->bank * ia), zz[0]};
+                    if (add_line(&c, bz, NULL, 3, 0, fine) != 0)
                         goto fail_ctx;
                 }
-                p->nline = c.nlines - p->line0;
+                p->line0 = c.nlines;
+                if (add_line(&c, zz, bk, 2, 1, (ia > 0 || ib > 0) ? fine : opts->track.min_step) !=
+                    0)
+                    goto fail_ctx;
+                c.lines[c.nlines - 1].inset_p = ia;
+                c.lines[c.nlines - 1].inset_q = ib;
+                p->nline = 1;
                 npc++;
-                continue;
             }
-            double complex a = sa->z, b = sb->z;
-            if (a == b)
-                continue;
-            p->kind = SW_PIECE_SEGMENT;
-            p->a = a;
-            p->b = b;
-            p->sing_a = sa->sing;
-            p->sing_b = sb->sing;
-            double complex u = (b - a) / cabs(b - a);
-            double ia = !sa->sing ? 0 : (i == 0 ? inset : bridge);
-            double ib = !sb->sing ? 0 : (i + 2 == nst ? inset : bridge);
-            if (ia + ib >= 0.5 * cabs(b - a)) {
-                st = sw_error_set(err, SW_EINPUT,
-                                  "a segment of length %.3g next to a singular point is too "
-                                  "short for the path's scale %.3g", cabs(b - a), S);
+            if (c.nlines == 0) {
+                st = sw_error_set(err, SW_EINPUT, "the path has no segment of positive length");
                 goto cleanup;
             }
-            double complex zz[2] = {a + u * ia, b - u * ib};
-            int bk[2] = {sa->bank, sb->bank};
-            if (i > 0 && sa->sing && c.nlines > 0) {
-                /* carry the branch past the marked singular point on a small
-                   detour on the marked side */
-                double complex bz[3] = {c.lines[c.nlines - 1].q,
-                                        a + CMPLX(0.0, (double)sa->bank * ia), zz[0]};
-                if (add_line(&c, bz, NULL, 3, 0, fine) != 0)
-                    goto fail_ctx;
+            /* where the branch is fixed */
+            if (!sing[vertex]) {
+                fixz = path->z[vertex];
+                fixbank = path->bank[vertex];
+            } else if (stations[0].vertex == (long)vertex) {
+                fixz = c.lines[0].p;
+                fixbank = path->bank[vertex];
+            } else {
+                fixz = c.lines[c.nlines - 1].q;
+                fixbank = path->bank[vertex];
             }
-            p->line0 = c.nlines;
-            if (add_line(&c, zz, bk, 2, 1, (ia > 0 || ib > 0) ? fine : opts->track.min_step) !=
-                0)
-                goto fail_ctx;
-            c.lines[c.nlines - 1].inset_p = ia;
-            c.lines[c.nlines - 1].inset_q = ib;
-            p->nline = 1;
-            npc++;
-        }
-        if (c.nlines == 0) {
-            st = sw_error_set(err, SW_EINPUT, "the path has no segment of positive length");
-            goto cleanup;
-        }
-        /* where the branch is fixed */
-        if (!sing[vertex]) {
-            fixz = path->z[vertex];
-            fixbank = path->bank[vertex];
-        } else if (stations[0].vertex == (long)vertex) {
-            fixz = c.lines[0].p;
-            fixbank = path->bank[vertex];
-        } else {
-            fixz = c.lines[c.nlines - 1].q;
-            fixbank = path->bank[vertex];
-        }
-        fixline = c.nlines;
-        for (size_t k = 0; k < c.nlines; k++)
-            if (c.lines[k].p == fixz) {
-                fixline = k;
-                break;
+            fixline = c.nlines;
+            for (size_t k = 0; k < c.nlines; k++)
+                if (c.lines[k].p == fixz) {
+                    fixline = k;
+                    break;
+                }
+            if (fixline == c.nlines && c.lines[c.nlines - 1].q != fixz) {
+                st = sw_error_set(err, SW_EINTERNAL, "the fixing point is not on a tracked line");
+                goto cleanup;
             }
-        if (fixline == c.nlines && c.lines[c.nlines - 1].q != fixz) {
-            st = sw_error_set(err, SW_EINTERNAL, "the fixing point is not on a tracked line");
-            goto cleanup;
+            st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
+            if (st != SW_OK) {
+                sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixz),
+                                cimag(fixz));
+                goto cleanup;
+            }
+            g0.z = fixz;
+            st = track_back(&c, &g0, fixline, err);
+            if (st == SW_ESINGULAR && retry)
+                continue;
+            if (st != SW_OK)
+                goto cleanup;
+            sw_germ gg;
+            if (sw_germ_init(&gg, f) != SW_OK) {
+                st = sw_error_set(err, SW_ENOMEM, "out of memory");
+                goto cleanup;
+            }
+            sw_germ_copy(&gg, &g0);
+            st = track_lines(&c, &gg, 0, c.nlines, 1, err);
+            sw_germ_clear(&gg);
+            if (st == SW_ESINGULAR && retry)
+                continue;
+            if (st != SW_OK)
+                goto cleanup;
+            break;
         }
-        st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
-        if (st != SW_OK) {
-            sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixz),
-                            cimag(fixz));
-            goto cleanup;
-        }
-        g0.z = fixz;
-        st = track_back(&c, &g0, fixline, err);
-        if (st != SW_OK)
-            goto cleanup;
-        sw_germ gg;
-        if (sw_germ_init(&gg, f) != SW_OK) {
-            st = sw_error_set(err, SW_ENOMEM, "out of memory");
-            goto cleanup;
-        }
-        sw_germ_copy(&gg, &g0);
-        st = track_lines(&c, &gg, 0, c.nlines, 1, err);
-        sw_germ_clear(&gg);
-        if (st != SW_OK)
-            goto cleanup;
     }
 
     /* integrate every piece */

@@ -86,6 +86,7 @@ typedef enum sw_end_rule {
     SW_RULE_NONE = 0,       /* a regular end: no special treatment */
     SW_RULE_JACOBI,         /* Gauss-Jacobi in s = x^(1/q) */
     SW_RULE_QAWS,           /* algebraic-logarithmic weight (QAWS) */
+    SW_RULE_LAGUERRE,       /* x = X exp(-u/(alpha+1)), Gauss-Laguerre in u (logs) */
     SW_RULE_TANH_SINH       /* double-exponential rule with a modelled tail */
 } sw_end_rule;
 
