@@ -12,4 +12,5 @@
 #include "sheetwalk/cuts.h"
 #include "sheetwalk/audit.h"
 #include "sheetwalk/sheets.h"
+#include "sheetwalk/plot.h"
 #endif
