@@ -22,7 +22,8 @@ enum {
     OPT_WHICH = 1u << 8,    /* --base / --point / --value */
     OPT_INTEGRAND = 1u << 9,/* --integrand / --bank */
     OPT_SAMPLES = 1u << 10, /* --samples / --tolerance */
-    OPT_OUTPUT = 1u << 11   /* -o FILE */
+    OPT_OUTPUT = 1u << 11,  /* -o FILE */
+    OPT_PLOT = 1u << 12     /* --picture / --view / --pixels */
 };
 
 #define CLI_MAX_LIST 64
@@ -38,6 +39,7 @@ typedef struct cli {
     int certify, json;
     const char *graph, *base, *point, *value, *integrand, *bank, *samples, *output,
         *tolerance;
+    const char *picture, *view, *pixels;
     sw_params params;
     /* loaded by cli_load */
     sw_func *f;
@@ -120,6 +122,7 @@ int cmd_integrate(int argc, char **argv);
 int cmd_cuts(int argc, char **argv);
 int cmd_which(int argc, char **argv);
 int cmd_audit(int argc, char **argv);
+int cmd_plot(int argc, char **argv);
 int cmd_batch(int argc, char **argv);
 /* The command NAME from the table in main.c, or NULL (batch mode). */
 int (*cli_command(const char *name))(int, char **);

@@ -161,7 +161,8 @@ int cli_usage(const cli *c, const char *fmt, ...)
 
 enum {
     LO_SET = 1000, LO_START, LO_AT, LO_CUT, LO_FIX, LO_EVAL, LO_CERTIFY, LO_JSON, LO_GRAPH,
-    LO_BASE, LO_POINT, LO_VALUE, LO_INTEGRAND, LO_BANK, LO_SAMPLES, LO_TOLERANCE
+    LO_BASE, LO_POINT, LO_VALUE, LO_INTEGRAND, LO_BANK, LO_SAMPLES, LO_TOLERANCE,
+    LO_PICTURE, LO_VIEW, LO_PIXELS
 };
 
 static const struct option long_opts[] = {
@@ -177,6 +178,8 @@ static const struct option long_opts[] = {
     {"bank", required_argument, NULL, LO_BANK}, {"samples", required_argument, NULL, LO_SAMPLES},
     {"tolerance", required_argument, NULL, LO_TOLERANCE},
     {"output", required_argument, NULL, 'o'},   {"help", no_argument, NULL, 'h'},
+    {"picture", required_argument, NULL, LO_PICTURE}, {"view", required_argument, NULL, LO_VIEW},
+    {"pixels", required_argument, NULL, LO_PIXELS},
     {NULL, 0, NULL, 0}};
 
 static int needs(cli *c, unsigned bit, const char *name)
@@ -264,6 +267,13 @@ int cli_parse(cli *c, int argc, char **argv, const char *help)
                  once(c, &c->tolerance, optarg, "--tolerance");
             break;
         case 'o': ok = needs(c, OPT_OUTPUT, "--output") && once(c, &c->output, optarg, "--output"); break;
+        case LO_PICTURE:
+            ok = needs(c, OPT_PLOT, "--picture") && once(c, &c->picture, optarg, "--picture");
+            break;
+        case LO_VIEW: ok = needs(c, OPT_PLOT, "--view") && once(c, &c->view, optarg, "--view"); break;
+        case LO_PIXELS:
+            ok = needs(c, OPT_PLOT, "--pixels") && once(c, &c->pixels, optarg, "--pixels");
+            break;
         case ':':
             return cli_usage(c, "option %s needs a value", argv[optind - 1]);
         case '?':

@@ -22,6 +22,7 @@ static const command commands[] = {
     {"which", cmd_which, "which sheet a value at a point is on, seen from a base point"},
     {"batch", cmd_batch, "JSON Lines queries on stdin, one JSON answer per line on stdout"},
     {"audit", cmd_audit, "where a principal-branch formula jumps; sampled values off the branch"},
+    {"plot", cmd_plot, "pictures: the plane (cuts, a path by sheet), monodromy graph, domain colouring"},
     {NULL, NULL, NULL}};
 
 /* For batch mode: the command NAME, or NULL. */
@@ -34,7 +35,7 @@ int (*cli_command(const char *name))(int, char **)
 }
 
 /* Commands of the contract that later versions add. */
-static const char *const planned[] = {"plot", NULL};
+static const char *const planned[] = {NULL};
 
 static void usage(FILE *fp)
 {
