@@ -49,6 +49,8 @@ static const double PI = 3.14159265358979323846;
 /* A pixel centre closer than this (relative to the view's size) to a cut
  * is on the cut; steps meeting a cut within it are refused. */
 #define ON_CUT_REL 1e-9
+/* Twice the tolerance below which cuts.c takes a point to lie on a cut. */
+#define ON_CUT_BRANCH 2e-12
 
 /* Sheet colours, our own choice: ten well-separated hues; beyond ten the
  * colours repeat with a dashed line. */
@@ -1567,7 +1569,16 @@ static sw_status colour_grid(filler *F, cairo_surface_t *img, const sw_cuts *cut
     F->dy = (v[3] - v[2]) / (double)gh;
     double scale = fmax(fmax(fabs(v[0]), fabs(v[1])), fmax(fabs(v[2]), fabs(v[3])));
     scale = fmax(scale, fmax(v[1] - v[0], v[3] - v[2]));
-    F->tol = ON_CUT_REL * scale;
+    /* at least what sw_branch_eval calls "on a cut" (1e-12 of the larger of
+       the cuts' size and |z|), so that a direct evaluation never fails for
+       that reason and its SW_EINPUT means "separated by the cuts" */
+    double cscale = fmax(1.0, scale);
+    for (size_t k = 0; cuts && k < cuts->npieces; k++) {
+        cscale = fmax(cscale, cabs(cuts->piece[k].from));
+        if (!cuts->piece[k].to_inf)
+            cscale = fmax(cscale, cabs(cuts->piece[k].to));
+    }
+    F->tol = fmax(ON_CUT_REL * scale, ON_CUT_BRANCH * cscale);
     sw_step_opts_init(&F->so);
     F->state = calloc(npix, 1);
     F->nseg = cuts ? cuts->npieces : 0;
