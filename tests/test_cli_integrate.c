@@ -129,6 +129,46 @@ static void test_values(void **state)
     json_decref(d);
 }
 
+/* --bank: the contract's keys "direct", "contour", "agreement"; the value is
+ * 9 pi / 8 = 3^2 B(3/2, 3/2) in modulus (DLMF 5.12.1). */
+static void test_bank(void **state)
+{
+    (void)state;
+    const char *args[] = {"-f", "sqrt((z-1)*(z-4))", "--cut", "1; 4", "--bank", "1,4", "--json",
+                          NULL};
+    json_t *d = run_integrate(args, 0);
+    assert_non_null(d);
+    double complex direct = jcplx(d, "direct"), contour = jcplx(d, "contour");
+    TU_CHECK_CLOSE(cabs(direct), 9 * gsl_sf_beta(1.5, 1.5), 1e-10, "|direct|",
+                   "DLMF 5.12.1, gsl_sf_beta(3/2, 3/2)");
+    TU_CHECK_CLOSE(contour, direct, 1e-9, "contour vs direct", "the contour method");
+    TU_CHECK_CLOSE(jcplx(d, "value"), direct, 0, "value is the direct bank integral", "cli.md");
+    const json_t *ag = json_object_get(d, "agreement");
+    assert_true(json_is_number(ag));
+    assert_true(json_number_value(ag) <= 1e-9);
+    json_decref(d);
+    /* no bounded cut: the contour method does not apply, and says so */
+    const char *open[] = {"-f", "sqrt(z)", "--bank", "-1,0", "--json", NULL};
+    d = run_integrate(open, 0);
+    assert_true(json_is_null(json_object_get(d, "contour")));
+    assert_true(json_is_null(json_object_get(d, "agreement")));
+    const json_t *cm = json_object_get(d, "contour_method");
+    assert_true(json_is_false(json_object_get(cm, "applies")));
+    assert_non_null(strstr(json_string_value(json_object_get(cm, "note")), "does not apply"));
+    TU_CHECK_CLOSE(cabs(jcplx(d, "direct")), 2.0 / 3, 1e-10, "int_-1^0 |sqrt(x)| dx",
+                   "antiderivative 2/3 |x|^(3/2) (common practice, no source)");
+    json_decref(d);
+    /* usage errors */
+    const char *u1[] = {"-f", "sqrt(z)", "--bank", "1", NULL};
+    json_decref(run_integrate(u1, 2));
+    const char *u2[] = {"-f", "sqrt(z)", "--bank", "-1,0", "-p", "0; 1", NULL};
+    json_decref(run_integrate(u2, 2));
+    const char *u3[] = {"-f", "sqrt(z)", "--cut", "0; -1", "-p", "1; 2", NULL};
+    json_decref(run_integrate(u3, 2));
+    const char *u4[] = {"-f", "sqrt(z)", "--bank", "-1+i0,0-i0", NULL};
+    json_decref(run_integrate(u4, 2));
+}
+
 static void test_human_and_help(void **state)
 {
     (void)state;
@@ -184,6 +224,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_values),
+        cmocka_unit_test(test_bank),
         cmocka_unit_test(test_human_and_help),
         cmocka_unit_test(test_bad_input),
     };

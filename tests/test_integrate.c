@@ -33,6 +33,7 @@
 #include <gsl/gsl_sf_gamma.h>
 #include <gsl/gsl_sf_psi.h>
 
+#include "sheetwalk/cuts.h"
 #include "sheetwalk/integrate.h"
 
 #define REL 1e-10 /* the accuracy goal */
@@ -440,6 +441,103 @@ static void test_bank_path(void **state)
     sw_integral_clear(&x.r);
 }
 
+/* ------------------------------------------------------- bank integrals */
+
+typedef struct bres {
+    sw_status st;
+    sw_bank_integral r;
+    char msg[SW_ERROR_MSG_MAX];
+} bres;
+
+/* The bank integral over [A, B] with the single cut CUT (path text) and the
+ * default regular branch (principal / sheet 1 at the middle of the bank). */
+static bres bank(const char *ftext, int curve, const char *rtext, const char *cut,
+                 double complex A, double complex B, int side)
+{
+    bres x;
+    memset(&x, 0, sizeof x);
+    sw_bank_integral_init(&x.r);
+    sw_func *f = NULL;
+    sw_expr *R = NULL;
+    sw_path p;
+    sw_path_init(&p);
+    sw_cuts cuts;
+    sw_cuts_init(&cuts);
+    sw_branch *b = NULL;
+    sw_error err;
+    sw_error_clear(&err);
+    x.st = curve ? sw_func_from_curve(&f, ftext, NULL, &err)
+                 : sw_func_from_expr(&f, ftext, NULL, &err);
+    if (x.st == SW_OK && rtext)
+        x.st = sw_integrand_parse(&R, rtext, NULL, &err);
+    if (x.st == SW_OK)
+        x.st = sw_path_parse(&p, cut, "path", NULL, &err);
+    if (x.st == SW_OK)
+        x.st = sw_cuts_add(&cuts, &p, &err);
+    if (x.st == SW_OK)
+        x.st = sw_branch_new(&b, f, &cuts, (A + B) / 2, side, NULL, &err);
+    if (x.st == SW_OK)
+        x.st = sw_integrate_bank(&x.r, f, R, &cuts, b, NULL, A, B, side, NULL, &err);
+    snprintf(x.msg, sizeof x.msg, "%s", err.msg);
+    sw_branch_free(b);
+    sw_cuts_clear(&cuts);
+    sw_path_clear(&p);
+    sw_expr_free(R);
+    sw_func_free(f);
+    return x;
+}
+
+static void test_bank_two_ways(void **state)
+{
+    (void)state;
+    /* int_1^4 sqrt((x-1)(4-x)) dx = 3^2 B(3/2, 3/2) = 9 pi / 8 (DLMF 5.12.1 with
+       x = 1 + 3t); on the bank the function is +-i times it */
+    bres x = bank("sqrt((z-1)*(z-4))", 0, NULL, "1; 4", 1, 4, SW_BANK_UPPER);
+    if (x.st != SW_OK)
+        print_error("%s\n", x.msg);
+    assert_int_equal(x.st, SW_OK);
+    TU_CHECK_CLOSE(cabs(x.r.direct.value), 9 * gsl_sf_beta(1.5, 1.5), REL, "|direct|",
+                   "DLMF 5.12.1, gsl_sf_beta(3/2, 3/2)");
+    assert_true(fabs(creal(x.r.direct.value)) <= 1e-12);
+    assert_int_equal(x.r.contour_applies, 1);
+    TU_CHECK_CLOSE(x.r.lambda, -1, 1e-12, "jump of a square root across its cut",
+                   "a turn around one zero changes the sign of a square root (DLMF 4.2.26)");
+    TU_CHECK_CLOSE(x.r.contour, x.r.direct.value, 1e-9, "contour vs direct",
+                   "the contour method (methods.md section 4)");
+    assert_true(x.r.agreement <= 1e-9);
+    sw_bank_integral_clear(&x.r);
+    /* the lower bank of 1/sqrt((x-1)(x-4)): pi = B(1/2, 1/2) (DLMF 5.12.1) */
+    x = bank("1/sqrt((z-1)*(z-4))", 0, NULL, "1; 4", 1, 4, SW_BANK_LOWER);
+    assert_int_equal(x.st, SW_OK);
+    TU_CHECK_CLOSE(cabs(x.r.direct.value), gsl_sf_beta(0.5, 0.5), REL, "|direct|, lower bank",
+                   "DLMF 5.12.1, gsl_sf_beta(1/2, 1/2)");
+    assert_int_equal(x.r.contour_applies, 1);
+    assert_true(x.r.agreement <= 1e-9);
+    sw_bank_integral_clear(&x.r);
+    /* a curve, the cut between two of its three finite branch points; the
+       integral is elliptic: direct and contour must agree */
+    x = bank("w^2-(z-1)*(z-4)*(z+3)", 1, "1/w", "1; 4", 1, 4, SW_BANK_UPPER);
+    assert_int_equal(x.st, SW_OK);
+    assert_int_equal(x.r.contour_applies, 1);
+    if (!(x.r.agreement <= 1e-9)) {
+        print_error("curve bank integral: agreement %.3g (%s)\n", x.r.agreement, x.r.note);
+        fail();
+    }
+    sw_bank_integral_clear(&x.r);
+    /* no jump: a single-valued function, the contour method does not apply */
+    x = bank("(z-1)*(z-4)", 0, NULL, "1; 4", 1, 4, SW_BANK_UPPER);
+    assert_int_equal(x.st, SW_OK);
+    assert_int_equal(x.r.contour_applies, 0);
+    assert_non_null(strstr(x.r.note, "lambda = 1"));
+    TU_CHECK_CLOSE(x.r.direct.value, -4.5, REL, "int_1^4 (x-1)(x-4) dx",
+                   "antiderivative (common practice, no source)");
+    sw_bank_integral_clear(&x.r);
+    /* a vertical segment has no +-i0 side */
+    x = bank("sqrt(z)", 0, NULL, "0; 1i", 0, CMPLX(0, 1), SW_BANK_UPPER);
+    assert_int_equal(x.st, SW_EINPUT);
+    sw_bank_integral_clear(&x.r);
+}
+
 /* ------------------------------------------------ mpmath cross-check */
 
 /* Random exponents checked against mpmath (an independent implementation)
@@ -529,6 +627,7 @@ int main(void)
         cmocka_unit_test(test_branch_at_singular_start),
         cmocka_unit_test(test_refusals),
         cmocka_unit_test(test_bank_path),
+        cmocka_unit_test(test_bank_two_ways),
         cmocka_unit_test(test_mpmath_random),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

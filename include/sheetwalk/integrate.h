@@ -60,6 +60,8 @@
 #include "sheetwalk/func.h"
 #include "sheetwalk/path.h"
 #include "sheetwalk/track.h"
+#include "sheetwalk/cuts.h"
+#include "sheetwalk/monodromy.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -170,6 +172,51 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                             const sw_integrate_opts *o, sw_error *err);
 
 const char *sw_end_rule_name(sw_end_rule r);
+
+/* A bank integral computed two ways. */
+typedef struct sw_bank_integral {
+    sw_integral direct;       /* int_A^B R(x, w(x +- i0)) dx by quadrature along the bank */
+    int contour_applies;      /* 1: the contour method was used */
+    char note[256];           /* how the contour value was obtained, or why not */
+    double complex lambda;    /* jump of the integrand: other bank / this bank */
+    double complex loop;      /* the counter-clockwise loop integral around [A, B] */
+    double loop_abserr;
+    double complex centre;    /* the loop: the circle |z - centre| = radius */
+    double radius;
+    double complex contour;   /* loop / (lambda - 1) (sign by the side, see below) */
+    double contour_abserr;
+    double agreement;         /* |direct - contour| / |direct| (NaN when not applied) */
+    size_t evaluations;       /* both ways together */
+} sw_bank_integral;
+
+void sw_bank_integral_init(sw_bank_integral *r);
+void sw_bank_integral_clear(sw_bank_integral *r);
+
+/* The integral of R(x, w) dx over [A, B] on one bank of a cut (BANK = +1:
+ * the side of increasing imaginary part, x + i0; -1: x - i0) of the regular
+ * branch B on the plane minus the cuts CUTS, computed two independent ways:
+ *  (a) directly, by sw_integrate_path along the bank (ends at branch points
+ *      allowed), the branch fixed by B at the segment's middle;
+ *  (b) by the contour method (methods.md section 4): when the integrand
+ *      jumps by a constant factor lambda across [A, B] (checked at three
+ *      points) and a circle around [A, B] meets no cut and no other singular
+ *      point of PTS (the finite points of sw_points_compute; NULL: computed
+ *      here), the counter-clockwise loop on that circle equals
+ *      (lambda - 1) times the bank integral (the bank on the left of A -> B;
+ *      (1 - lambda) when on the right), so the bank integral is the loop
+ *      divided by that factor.  The loop is computed numerically on the
+ *      circle (trapezoidal rule); poles of R that PTS does not list and that
+ *      lie inside the circle would add their residues: the agreement of (a)
+ *      and (b) is the check.  lambda = 1 (no jump), a non-constant jump, a
+ *      cut running on beyond [A, B] or a loop that does not return to its
+ *      branch: the contour method does not apply, and NOTE says why.
+ * [A, B] must not be vertical (the bank is chosen by +-i0).  Errors as for
+ * sw_integrate_path; SW_ETOLERANCE when the direct value misses the
+ * tolerance (the result is filled in). */
+sw_status sw_integrate_bank(sw_bank_integral *out, const sw_func *f, const sw_expr *integrand,
+                            const sw_cuts *cuts, const sw_branch *b, const sw_points *pts,
+                            double complex A, double complex B, int bank,
+                            const sw_integrate_opts *o, sw_error *err);
 
 #ifdef __cplusplus
 }
