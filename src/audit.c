@@ -22,9 +22,11 @@
  * only when both ends of that half lie in the left half-plane: a crossing is
  * a change of the sign bit of Im u between two samples with Re u < 0 (the
  * sign bit, because csqrt and clog decide by it on the cut: C11 Annex G).
- * A quadratic through the three samples of Im u / |u| flags an interval where
- * the operand may dip across the axis and back between samples; such an
- * interval is halved too.  Each crossing is bisected to a bracket of
+ * Near the cut an interval is halved further while the operand's angular
+ * distance from the negative axis at the samples is less than twice the
+ * angle it turns between them, or a quadratic through the three samples of
+ * Im u / |u| dips towards the axis: otherwise the operand could cross the
+ * axis and come back between two samples unseen.  Each crossing is bisected to a bracket of
  * locate * scale (default 1e-14).
  *
  * Samples on the cut.  An operand that lies on the negative axis (to
@@ -87,6 +89,9 @@ static const double PI = 3.14159265358979323846;
 #define GROUP_REL 1e-11
 /* Principal and continued values agree when within this relative distance. */
 #define AGREE_REL 1e-9
+/* Refine where an operand's angular distance from the negative axis is less
+ * than this many times the angle it turns between neighbouring samples. */
+#define NEAR_K 2.0
 /* Evaluations allowed for refining one logged step of one node: locating a
  * few jumps takes a few hundred; more means the operand flips erratically. */
 #define SCAN_BUDGET 4000
@@ -358,6 +363,19 @@ static int hidden_dip(double complex ua, double complex um, double complex ub)
     return (qe > 0) != (ya > 0) || qe == 0 || fabs(qe) < 0.25 * fmin(fabs(ya), fabs(yb));
 }
 
+/* Between two samples on the same side of the cut, could the operand reach
+ * the cut and come back unseen?  Only if its angular distance from the
+ * negative axis at the samples is not clearly larger than the angle it turns
+ * between them (NEAR_K times; below rounding the operand merely touches). */
+static int too_close(double complex u0, double complex u1, int s0, int s1)
+{
+    if (s0 != s1)
+        return 0; /* a crossing: bisected, not refined */
+    double d = fmin(PI - fabs(carg(u0)), PI - fabs(carg(u1)));
+    double turn = fabs(carg(u1 / u0));
+    return d > CUT_EPS && d < NEAR_K * turn;
+}
+
 static void scan(ctx *c, size_t j, size_t k, double a, double b, double complex ua,
                  double complex ub, int depth)
 {
@@ -388,13 +406,14 @@ static void scan(ctx *c, size_t j, size_t k, double a, double b, double complex 
         push_spot(c, &c->oc, &c->noc, &c->aoc, (long)j, k, a, b);
         return;
     }
+    int sa = side(ua), sm = side(um), sb = side(ub);
     int near = creal(ua) < 0 || creal(um) < 0 || creal(ub) < 0;
-    if (near && can_split && hidden_dip(ua, um, ub)) {
+    if (near && can_split && (hidden_dip(ua, um, ub) || too_close(ua, um, sa, sm) ||
+                              too_close(um, ub, sm, sb))) {
         scan(c, j, k, a, mid, ua, um, depth + 1);
         scan(c, j, k, mid, b, um, ub, depth + 1);
         return;
     }
-    int sa = side(ua), sm = side(um), sb = side(ub);
     if (sa && sm && sa != sm)
         bisect(c, j, k, a, mid, sa);
     if (sm && sb && sm != sb)

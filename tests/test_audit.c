@@ -470,6 +470,125 @@ static int roots01(double *out, double a, double b, double c)
     return n;
 }
 
+/* Audit sqrt(z-a) (z-b)^(1/3) log(z-c) sqrt(z^2-d) along the polyline V and
+ * compare with the crossings in closed form.  Returns the number of
+ * crossings checked, or -1 when the case is degenerate (skipped). */
+static int check_case(double complex a, double complex b, double complex c, double complex d,
+                      const double complex *v, size_t nv, const char *what)
+{
+    xc ex[64];
+    int nex = 0, bad = 0;
+    double complex br[5] = {a, b, c, csqrt(d), -csqrt(d)};
+    for (size_t k = 0; k + 1 < nv && !bad; k++) {
+        double complex A = v[k], D = v[k + 1] - v[k];
+        for (int q = 0; q < 5; q++) /* stay away from the branch points */
+            if (tu_polyline_distance(v + k, 2, br[q]) < 1e-2)
+                bad = 1;
+        for (int node = 0; node < 4 && !bad; node++) {
+            double r[2];
+            int nr;
+            if (node < 3) {
+                double complex p = node == 0 ? a : node == 1 ? b : c;
+                nr = roots01(r, 0, cimag(D), cimag(A - p));
+            } else {
+                nr = roots01(r, cimag(D * D), 2 * cimag(A * D), cimag(A * A - d));
+            }
+            for (int q = 0; q < nr; q++) {
+                double s = r[q];
+                if (!(s > -1e-6 && s < 1 + 1e-6))
+                    continue;
+                if (s < 1e-6 || s > 1 - 1e-6) {
+                    bad = 1; /* a crossing at a vertex: skip the case */
+                    break;
+                }
+                double complex z = A + s * D;
+                double complex u = node == 0 ? z - a : node == 1 ? z - b : node == 2 ? z - c
+                                                                                      : z * z - d;
+                if (creal(u) < 0 && nex < 64)
+                    ex[nex++] = (xc){k, s, z, node};
+            }
+        }
+    }
+    /* two crossings too close to tell apart: skip */
+    for (int i = 0; i < nex && !bad; i++)
+        for (int j = i + 1; j < nex; j++)
+            if (cabs(ex[i].z - ex[j].z) < 1e-6 && ex[i].seg == ex[j].seg)
+                bad = 1;
+    if (bad)
+        return -1;
+    char fa[64], fb[64], fc[64], fd[64], nodes[4][96], ftext[512], ptext[512];
+    tu_fmt_vertex(fa, sizeof fa, a);
+    tu_fmt_vertex(fb, sizeof fb, b);
+    tu_fmt_vertex(fc, sizeof fc, c);
+    tu_fmt_vertex(fd, sizeof fd, d);
+    snprintf(nodes[0], sizeof nodes[0], "sqrt(z-(%s))", fa);
+    snprintf(nodes[1], sizeof nodes[1], "(z-(%s))^(1/3)", fb);
+    snprintf(nodes[2], sizeof nodes[2], "log(z-(%s))", fc);
+    snprintf(nodes[3], sizeof nodes[3], "sqrt(z^2-(%s))", fd);
+    snprintf(ftext, sizeof ftext, "%s*%s*%s*%s", nodes[0], nodes[1], nodes[2], nodes[3]);
+    size_t used = 0;
+    for (size_t k = 0; k < nv; k++) {
+        char vb[64];
+        tu_fmt_vertex(vb, sizeof vb, v[k]);
+        used += (size_t)snprintf(ptext + used, sizeof ptext - used, "%s%s", k ? "; " : "", vb);
+    }
+    ar r;
+    ar_track(&r, ftext, 0, ptext, NULL, 1);
+    if (r.st == SW_ESINGULAR) { /* the formula's value vanishes or blows up on the path */
+        ar_clear(&r);
+        return -1;
+    }
+    if (r.st != SW_OK) {
+        print_error("%s: %s\n", what, r.err.msg);
+        fail();
+    }
+    if ((int)r.a.njumps != nex) {
+        print_error("%s: %zu jumps, expected %d (closed form, DLMF 4.2.3)\n  f = %s\n  path = %s\n",
+                    what, r.a.njumps, nex, ftext, ptext);
+        for (int i = 0; i < nex; i++)
+            print_error("  expected z = %.17g%+.17gi node %d\n", creal(ex[i].z), cimag(ex[i].z),
+                        ex[i].node);
+        for (size_t k = 0; k < r.a.njumps; k++)
+            print_error("  found z = %.17g%+.17gi\n", creal(r.a.jump[k].z), cimag(r.a.jump[k].z));
+        fail();
+    }
+    for (int i = 0; i < nex; i++) {
+        double dist;
+        const sw_audit_jump *j = nearest_jump(&r.a, ex[i].z, &dist);
+        if (!(dist <= LOC * r.a.scale)) {
+            print_error("%s: crossing at %.17g%+.17gi (node %d) located at distance %.3g\n"
+                        "  f = %s\n  path = %s\n", what, creal(ex[i].z), cimag(ex[i].z),
+                        ex[i].node, dist, ftext, ptext);
+            fail();
+        }
+        TU_CHECK_CLOSE(j->t, (double)ex[i].seg + ex[i].s, 1e-9, "t", "closed form");
+        assert_true(j->ncause >= 1);
+        assert_false(j->cause[0].carried);
+        char txt[128];
+        sw_expr_mv_text(txt, sizeof txt, sw_func_expr(r.f), j->cause[0].node);
+        assert_string_equal(txt, nodes[ex[i].node]);
+    }
+    ar_clear(&r);
+    return nex;
+}
+
+static void test_double_crossing_in_one_step(void **state)
+{
+    (void)state;
+    /* z^2 - d crosses the negative axis and comes back (0.36 apart) inside
+       one step of the tracker, with the operand within 9 degrees of the axis
+       at the samples: found by refining where the operand is closer to the
+       axis than it turns between samples (a case once missed) */
+    const double complex v[] = {CMPLX(-3.6561587585787532, -0.31442907487049343),
+                                CMPLX(-0.2518878765919732, -2.158486938392107),
+                                CMPLX(-3.8542634151824506, 2.9733296860389959)};
+    int n = check_case(CMPLX(1.1282081174405603, -1.671500532775684),
+                       CMPLX(1.9883386339764066, -0.74257207917045065),
+                       CMPLX(-1.7444022111110407, 0.21552691872738672),
+                       CMPLX(2.7994035174104255, 2.1935661141348088), v, 3, "double crossing");
+    assert_int_equal(n, 8);
+}
+
 static void test_property_random_polylines(void **state)
 {
     (void)state;
@@ -485,105 +604,14 @@ static void test_property_random_polylines(void **state)
         double complex v[6];
         for (size_t k = 0; k < nv; k++)
             v[k] = CMPLX(tu_range(&rng, -4, 4), tu_range(&rng, -4, 4));
-        /* expected crossings, in closed form per node */
-        xc ex[64];
-        int nex = 0, bad = 0;
-        double complex br[5] = {a, b, c, csqrt(d), -csqrt(d)};
-        for (size_t k = 0; k + 1 < nv && !bad; k++) {
-            double complex A = v[k], D = v[k + 1] - v[k];
-            for (int q = 0; q < 5; q++) /* stay away from the branch points */
-                if (tu_polyline_distance(v + k, 2, br[q]) < 1e-2)
-                    bad = 1;
-            for (int node = 0; node < 4 && !bad; node++) {
-                double r[2];
-                int nr;
-                if (node < 3) {
-                    double complex p = node == 0 ? a : node == 1 ? b : c;
-                    nr = roots01(r, 0, cimag(D), cimag(A - p));
-                } else {
-                    nr = roots01(r, cimag(D * D), 2 * cimag(A * D), cimag(A * A - d));
-                }
-                for (int q = 0; q < nr; q++) {
-                    double s = r[q];
-                    if (!(s > -1e-6 && s < 1 + 1e-6))
-                        continue;
-                    if (s < 1e-6 || s > 1 - 1e-6) {
-                        bad = 1; /* a crossing at a vertex: skip the case */
-                        break;
-                    }
-                    double complex z = A + s * D;
-                    double complex u = node == 0 ? z - a : node == 1 ? z - b : node == 2 ? z - c
-                                                                                          : z * z - d;
-                    if (creal(u) < 0 && nex < 64)
-                        ex[nex++] = (xc){k, s, z, node};
-                }
-            }
-        }
-        /* two crossings too close to tell apart: skip */
-        for (int i = 0; i < nex && !bad; i++)
-            for (int j = i + 1; j < nex; j++)
-                if (cabs(ex[i].z - ex[j].z) < 1e-6 && ex[i].seg == ex[j].seg)
-                    bad = 1;
-        if (bad)
+        char what[96];
+        snprintf(what, sizeof what, "seed %llu (set SW_SEED to reproduce) case %d",
+                 (unsigned long long)rng.seed, icase);
+        int n = check_case(a, b, c, d, v, nv, what);
+        if (n < 0)
             continue;
-        char fa[64], fb[64], fc[64], fd[64], nodes[4][96], ftext[512], ptext[512];
-        tu_fmt_vertex(fa, sizeof fa, a);
-        tu_fmt_vertex(fb, sizeof fb, b);
-        tu_fmt_vertex(fc, sizeof fc, c);
-        tu_fmt_vertex(fd, sizeof fd, d);
-        snprintf(nodes[0], sizeof nodes[0], "sqrt(z-(%s))", fa);
-        snprintf(nodes[1], sizeof nodes[1], "(z-(%s))^(1/3)", fb);
-        snprintf(nodes[2], sizeof nodes[2], "log(z-(%s))", fc);
-        snprintf(nodes[3], sizeof nodes[3], "sqrt(z^2-(%s))", fd);
-        snprintf(ftext, sizeof ftext, "%s*%s*%s*%s", nodes[0], nodes[1], nodes[2], nodes[3]);
-        size_t used = 0;
-        for (size_t k = 0; k < nv; k++) {
-            char vb[64];
-            tu_fmt_vertex(vb, sizeof vb, v[k]);
-            used += (size_t)snprintf(ptext + used, sizeof ptext - used, "%s%s", k ? "; " : "", vb);
-        }
-        ar r;
-        ar_track(&r, ftext, 0, ptext, NULL, 1);
-        if (r.st == SW_ESINGULAR) { /* the formula's value vanishes or blows up on the path */
-            ar_clear(&r);
-            continue;
-        }
-        if (r.st != SW_OK) {
-            print_error("seed %llu case %d: %s\n", (unsigned long long)rng.seed, icase, r.err.msg);
-            fail();
-        }
         cases++;
-        total += nex;
-        if ((int)r.a.njumps != nex) {
-            print_error("seed %llu case %d: %zu jumps, expected %d (closed form, DLMF 4.2.3)\n"
-                        "  f = %s\n  path = %s\n", (unsigned long long)rng.seed, icase,
-                        r.a.njumps, nex, ftext, ptext);
-            for (int i = 0; i < nex; i++)
-                print_error("  expected z = %.17g%+.17gi node %d\n", creal(ex[i].z),
-                            cimag(ex[i].z), ex[i].node);
-            for (size_t k = 0; k < r.a.njumps; k++)
-                print_error("  found z = %.17g%+.17gi\n", creal(r.a.jump[k].z),
-                            cimag(r.a.jump[k].z));
-            fail();
-        }
-        for (int i = 0; i < nex; i++) {
-            double dist;
-            const sw_audit_jump *j = nearest_jump(&r.a, ex[i].z, &dist);
-            if (!(dist <= LOC * r.a.scale)) {
-                print_error("seed %llu case %d: crossing at %.17g%+.17gi (node %d) located "
-                            "at distance %.3g\n  f = %s\n  path = %s\n",
-                            (unsigned long long)rng.seed, icase, creal(ex[i].z),
-                            cimag(ex[i].z), ex[i].node, dist, ftext, ptext);
-                fail();
-            }
-            TU_PROP_CLOSE(&rng, icase, j->t, (double)ex[i].seg + ex[i].s, 1e-9, "t",
-                          "closed form");
-            assert_int_equal(j->ncause, 1);
-            char txt[128];
-            sw_expr_mv_text(txt, sizeof txt, sw_func_expr(r.f), j->cause[0].node);
-            assert_string_equal(txt, nodes[ex[i].node]);
-        }
-        ar_clear(&r);
+        total += n;
     }
     print_message("random polylines: %d cases, %d crossings located (seed %llu)\n", cases, total,
                   (unsigned long long)rng.seed);
@@ -951,6 +979,7 @@ int main(void)
         cmocka_unit_test(test_on_the_cut),
         cmocka_unit_test(test_repeated_vertices),
         cmocka_unit_test(test_principal_pole),
+        cmocka_unit_test(test_double_crossing_in_one_step),
         cmocka_unit_test(test_property_random_polylines),
         cmocka_unit_test(test_csv_parsing),
         cmocka_unit_test(test_samples_planted),
