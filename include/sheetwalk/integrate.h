@@ -43,6 +43,8 @@
  * vertex is a singular end (a branch point has no value), the branch is fixed
  * at the point of the adjacent segment at distance SW_INTEGRATE_INSET times
  * the path scale from the vertex — in practice the limit along the segment.
+ * When W is NULL and VERTEX is a singular point inside the path (a path from
+ * 'inf' through a marked branch point), the nearest regular vertex is used.
  * A path through a singular point at an interior vertex is continued past it
  * on the side given by the vertex's bank mark (x+i0: a small half-circle
  * above, x-i0: below) and refused without a mark.
