@@ -75,6 +75,7 @@ static const double EPS = 2.220446049250313e-16;
 #define TS_CUT 1e-12       /* tanh-sinh: lower cut x_c (relative) before rounding limits */
 #define TRAPEZOID_MAX 16384 /* most nodes on a circle */
 #define FAST_DECAY 30.0
+#define GROWTH 30.0       /* estimated exponent below -30: growth beyond any power law */
 #define ROUNDING_FLOOR 1000.0 /* eps units of the L1 norm: cancellation limit */    /* local exponent above this: F vanishes to all orders */
 
 void sw_integrate_opts_init(sw_integrate_opts *o)
@@ -1378,6 +1379,20 @@ static sw_status refuse_end(ictx *c, const zmap *m, const endinfo *ei, double co
 {
     double complex a = ei->alpha;
     char buf[SW_ERROR_MSG_MAX], sa[64], sz[64];
+    if (!ei->exact && !(creal(a) > -GROWTH)) {
+        /* faster than any power: an exponential, or no power law at all */
+        if (m->inf)
+            snprintf(buf, sizeof buf,
+                     "the integrand does not decay along the ray to infinity (it grows or "
+                     "oscillates faster than any power): the integral over the ray diverges");
+        else
+            snprintf(buf, sizeof buf,
+                     "the integrand grows faster than any power of 1/|z - z0| at the end z0 = %s "
+                     "of the path: not integrable", cstr(sz, sizeof sz, z0));
+        c->st = SW_EINPUT;
+        sw_error_set(&c->err, SW_EINPUT, "%s", buf);
+        return SW_EINPUT;
+    }
     if (m->inf) {
         double complex beta = -a - 2; /* F ~ s^a  <=>  f ~ z^(-a-2) */
         snprintf(buf, sizeof buf,
@@ -2317,7 +2332,36 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 st = sw_error_set(err, SW_EINTERNAL, "the fixing point is not on a tracked line");
                 goto cleanup;
             }
-            st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
+            if (sing[vertex] && fixbank != SW_BANK_NONE) {
+                /* a bank limit so close to a branch point is beyond the
+                   engine (it takes the limit from 1e-8 of |z| away): take it
+                   farther along the segment and carry it back on the bank */
+                double complex z0 = path->z[vertex], d = fixz - z0;
+                double want = fmax(1e-4 * fmax(1.0, cabs(z0)), 1e-6 * S);
+                const tline *fl = fixline < c.nlines ? &c.lines[fixline] : &c.lines[c.nlines - 1];
+                double room = 0.25 * cabs(fl->q - fl->p);
+                double complex zf = z0 + d / cabs(d) * fmin(want, room);
+                sw_path bp;
+                sw_path_init(&bp);
+                sw_trace btr;
+                sw_trace_init(&btr);
+                st = sw_func_germ_at(&g0, f, zf, fixbank, w, err);
+                if (st == SW_OK && (st = sw_path_push(&bp, zf, fixbank, err)) == SW_OK &&
+                    (st = sw_path_push(&bp, fixz, fixbank, err)) == SW_OK) {
+                    sw_track_opts to = opts->track;
+                    to.keep_log = 0;
+                    to.min_step = fmin(to.min_step, 1e-15);
+                    st = sw_track_run(&btr, f, &g0, &bp, &to, err);
+                    if (st == SW_OK)
+                        sw_germ_copy(&g0, &btr.vert[1]);
+                }
+                sw_trace_clear(&btr);
+                sw_path_clear(&bp);
+            } else {
+                st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
+            }
+            if (st == SW_ESINGULAR && retry)
+                continue;
             if (st != SW_OK) {
                 sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixz),
                                 cimag(fixz));
