@@ -1,4 +1,5 @@
-/* Integrals of the tracked branch along a path (methods.md §4).
+/* Integrals of the tracked branch along a path (methods.md section 4); the
+ * methods and their sources are listed in include/sheetwalk/integrate.h.
  *
  * The path is cut into pieces (finite segments, rays to or from infinity, or
  * one circle).  Every piece is tracked once (sw_track_run with the dense
@@ -9,33 +10,12 @@
  * A piece is integrated in a local variable x: on a segment z = base + x dir
  * with x the fraction of the segment from one end; on a ray z = c + e / s
  * with s in (0, 1] (s = 0 is infinity).  An end where the integrand is
- * singular ("singular end") is analysed by continuation around small circles
- * |x| = r: after q turns the integrand is multiplied by exp(2 pi i q alpha)
- * at every radius exactly when F(x) = x^alpha H(x^(1/q)) with H single-valued
- * near the end (Puiseux; B. Deconinck, M. van Hoeij, Physica D 152-153 (2001)
- * use the same fact for curves), which yields alpha modulo 1/q to rounding;
- * the integer part comes from the decay of |F| at geometric distances
- * (Aitken's delta-squared on the local log-slopes).  Then
- *     int_0^X F dx = q X^(alpha+1) int_0^1 s^(q(alpha+1)-1) H(X s^q) ds,
- * a Gauss-Jacobi rule (GSL gsl_integration_fixed) of increasing order samples
- * only H.  Each value H = F(x^)/x^^alpha uses the local coordinate x^ of the
- * point where the germ actually is, so that rounding of z0 + x dir next to a
- * singular end z0 != 0 does not spoil the result.
- *
- * Logarithmic ends of expressions, F = x^alpha (A log x + B): when a turn
- * leaves every operand unchanged and only adds 2 pi i n_k to the logarithm of
- * operand k, the turned value F1 is computed at every point by shifting the
- * logarithms, and A x^alpha = (F1/mu - F) / (2 pi i), mu = exp(2 pi i alpha);
- * both parts are integrated with GSL QAWS (weights x^alpha and x^alpha log x).
- * Any other end is integrated by the tanh-sinh rule (H. Takahasi, M. Mori,
- * Publ. RIMS 9 (1974) 721-741) down to a small x_c, plus the tail over
- * [0, x_c] from the local power law, whose uncertainty goes into abserr.
- *
- * Smooth pieces: GSL QAG (21-point Gauss-Kronrod) on the real and the
- * imaginary part, sharing every complex value through a small cache, so an
- * evaluation is counted once.  Circles: the trapezoidal rule (geometric
- * convergence for periodic analytic integrands, L. N. Trefethen,
- * J. A. C. Weideman, SIAM Review 56 (2014) 385-458). */
+ * singular is analysed (analyze_end) by loops on a ladder of radii, which
+ * give the local exponent exactly (mod 1/q) and the zone where the local
+ * expansion holds; then a rule that samples only the smooth factor is used
+ * (Gauss-Jacobi, Gauss-Laguerre for logarithms; QAWS and tanh-sinh as
+ * fallbacks).  Smooth pieces use GSL QAG on both parts of the complex
+ * integrand through a cache, so each value is computed (and counted) once. */
 /* curve_internal.h brings FLINT's headers, which must precede <complex.h> */
 #include "curve_internal.h"
 #include <flint/fmpq.h>
@@ -600,6 +580,7 @@ typedef struct endinfo {
     long *shift;            /* END_LOG: turns of every operand (nmv entries) */
     int exact;
     double alpha_num;       /* numerical estimate of Re alpha */
+    int logdeg;             /* END_LOG: degree of the polynomial in log x (1..3) */
     double reach;           /* the expansion holds for x below this (local units) */
 } endinfo;
 
@@ -711,6 +692,98 @@ static int slope_estimate(ictx *c, const zmap *m, double X, double *an, int *zer
 
 #define NRADII 4           /* loop radii X0/16, X0/256, X0/4096, X0/65536 */
 
+/* Expressions: F at the germ G with only the logarithms of power nodes (not
+ * of log nodes) shifted by TURNS turns of SHIFT. */
+static double complex eval_shifted_powers(ictx *c, const zmap *m, const sw_germ *g,
+                                          const long *shift, long turns)
+{
+    const sw_expr *e = sw_func_expr(c->f);
+    sw_germ_copy(&c->h, g);
+    for (size_t k = 0; k < c->nmv; k++)
+        if (e->node[e->mv_node[k]].kind != N_LOG)
+            c->h.s[2 * k + 1] += CMPLX(0.0, 2 * PI * (double)(shift[k] * turns));
+    double complex w = sw_func_value(c->f, &c->h);
+    c->evals++;
+    return integrand_at(c, g->z, w) * map_jac(m, map_x(m, g->z));
+}
+
+#define LOG_DEGREE_MAX 3
+
+/* h_k = F_k / mu^k for k = 0..p+1 at the germ G: a polynomial of degree p in
+ * k exactly when its (p+1)-th difference vanishes.  Returns the least such
+ * p in 1..LOG_DEGREE_MAX, or 0. */
+static int log_poly_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shift,
+                           double complex mu)
+{
+    double complex h[LOG_DEGREE_MAX + 2];
+    double big = 0;
+    for (int k = 0; k <= LOG_DEGREE_MAX + 1; k++) {
+        h[k] = eval_shifted(c, m, g, shift, k) / cpow(mu, k);
+        big = fmax(big, cabs(h[k]));
+    }
+    for (int p = 1; p <= LOG_DEGREE_MAX; p++) {
+        /* (p+1)-th and p-th differences at 0 */
+        double complex d1 = 0, d0 = 0;
+        double b1 = 1, b0 = 1;
+        for (int j = 0; j <= p + 1; j++) {
+            d1 += ((p + 1 - j) % 2 ? -1 : 1) * b1 * h[j];
+            b1 = b1 * (p + 1 - j) / (j + 1);
+        }
+        for (int j = 0; j <= p; j++) {
+            d0 += ((p - j) % 2 ? -1 : 1) * b0 * h[j];
+            b0 = b0 * (p - j) / (j + 1);
+        }
+        if (cabs(d1) <= RATIO_TOL * big * (1 << p))
+            return cabs(d0) > RATIO_TOL * big ? p : 0;
+    }
+    return 0;
+}
+
+/* Look for a logarithmic end (see analyze_end); fills EI and returns the
+ * degree p, 0 when the end is not of that kind, -1 on failure. */
+static int log_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shift, int J,
+                      int nr, const int *alive, const int *shiftok, const double *r, double X0,
+                      endinfo *ei)
+{
+    (void)nr;
+    if (!alive[J] || !alive[J - 1] || !shiftok[J] || !shiftok[J - 1])
+        return 0;
+    const long *sJ = shift + (size_t)J * c->nmv, *sJ1 = shift + (size_t)(J - 1) * c->nmv;
+    double complex F0 = eval_shifted(c, m, &g[J], sJ, 0);
+    double complex F1 = eval_shifted(c, m, &g[J - 1], sJ1, 0);
+    double complex mu = eval_shifted_powers(c, m, &g[J], sJ, 1) / F0;
+    double complex mu1 = eval_shifted_powers(c, m, &g[J - 1], sJ1, 1) / F1;
+    if (!finite_c(mu) || cabs(mu - mu1) > RATIO_TOL * fmax(1.0, cabs(mu)))
+        return 0;
+    int p = log_poly_degree(c, m, &g[J], sJ, mu);
+    if (p == 0 || log_poly_degree(c, m, &g[J - 1], sJ1, mu) != p)
+        return 0;
+    ei->kind = END_LOG;
+    ei->q = 1;
+    ei->logdeg = p;
+    ei->mu = mu;
+    ei->shift = malloc(c->nmv * sizeof *ei->shift);
+    if (ei->shift == NULL) {
+        fail(c, SW_ENOMEM, "out of memory");
+        return -1;
+    }
+    memcpy(ei->shift, sJ, c->nmv * sizeof *ei->shift);
+    /* reach: the larger radii with the same turns and the same structure */
+    int top = J - 1;
+    while (top > 0 && alive[top - 1] && shiftok[top - 1] &&
+           memcmp(shift + (size_t)(top - 1) * c->nmv, sJ, c->nmv * sizeof *sJ) == 0) {
+        const long *st = shift + (size_t)(top - 1) * c->nmv;
+        double complex Ft = eval_shifted(c, m, &g[top - 1], st, 0);
+        double complex mt = eval_shifted_powers(c, m, &g[top - 1], st, 1) / Ft;
+        if (cabs(mt - mu) > RATIO_TOL * fmax(1.0, cabs(mu)) ||
+            log_poly_degree(c, m, &g[top - 1], st, mu) != p)
+            break;
+        top--;
+    }
+    ei->reach = top == 0 ? X0 : r[top];
+    return p;
+}
+
 /* Classify the end x = 0 of map M (the zone reaches at most X0).
  *
  * Loops on a ladder of radii r_j = X0 16^-(j+1): the structure is read at
@@ -736,7 +809,7 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
     long *shift = NULL;
     sw_germ g[NRADII], l[NRADII];
     int ng = 0, rc = 0;
-    double complex F0[NRADII], Fk[NRADII][3], x0h[NRADII];
+    double complex F0[NRADII], x0h[NRADII];
     int shiftok[NRADII], alive[NRADII];
     if (c->expr && c->nmv) {
         shift = calloc(NRADII * c->nmv, sizeof *shift);
@@ -760,7 +833,6 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
         sw_germ_copy(&l[j], &c->g);
         alive[j] = finite_c(F0[j]) && F0[j] != 0;
         shiftok[j] = 0;
-        Fk[j][0] = F0[j];
     }
     int J = nr - 1; /* the smallest radius */
     if (nr < 2 || !alive[J] || !alive[J - 1]) {
@@ -797,8 +869,6 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
                 fk = integrand_at(c, l[j].z, w) * map_jac(m, map_x(m, l[j].z));
                 c->evals++;
             }
-            if (k <= 2)
-                Fk[j][k] = fk;
             ratio[j] = fk / F0[j];
         }
         /* shift mode is decided at the smallest radius after the first turn */
@@ -817,57 +887,19 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
             ei->reach = top == 0 ? X0 : r[top];
             break;
         }
-        if (k == 2 && shiftmode) {
-            /* logarithmic: F_k = mu^k (F + k D), so 1/mu is a root of
-               F2 y^2 - 2 F1 y + F0 = 0 at every radius */
-            double complex y[NRADII][2];
-            for (int j = 0; j < nr; j++) {
-                if (!alive[j] || !shiftok[j] || Fk[j][2] == 0) {
-                    y[j][0] = y[j][1] = NAN;
-                    continue;
-                }
-                double complex disc = csqrt(Fk[j][1] * Fk[j][1] - Fk[j][0] * Fk[j][2]);
-                y[j][0] = (Fk[j][1] + disc) / Fk[j][2];
-                y[j][1] = (Fk[j][1] - disc) / Fk[j][2];
+        if (k == 1 && shiftmode) {
+            /* logarithmic: F = x^alpha P(log x) with P a polynomial of degree
+               p <= 3 whose coefficients are analytic at the end.  Shifting
+               only the powers' logarithms by one turn multiplies F by
+               mu = exp(2 pi i alpha); shifting all of them k times gives
+               mu^k P(log x + 2 pi i k), a polynomial of degree p in k */
+            int p = log_degree(c, m, g, shift, J, nr, alive, shiftok, r, X0, ei);
+            if (p < 0) {
+                rc = -1;
+                goto done;
             }
-            for (int i = 0; i < 2 && ei->kind != END_LOG; i++) {
-                double complex yy = y[J][i];
-                int match = 0;
-                for (int t = 0; t < 2; t++)
-                    match |= cabs(y[J - 1][t] - yy) <= RATIO_TOL * fmax(1.0, cabs(yy));
-                if (!finite_c(yy) || !match)
-                    continue;
-                double complex mu2 = 1 / yy;
-                double complex D = Fk[J][1] / mu2 - Fk[J][0];
-                double complex f3 =
-                    eval_shifted(c, m, &g[J], shift + (size_t)J * c->nmv, 3);
-                if (cabs(f3 / (mu2 * mu2 * mu2) - (Fk[J][0] + 3 * D)) <=
-                        RATIO_TOL * (cabs(Fk[J][0]) + 3 * cabs(D)) &&
-                    cabs(D) > RATIO_TOL * cabs(Fk[J][0])) {
-                    ei->kind = END_LOG;
-                    ei->q = 1;
-                    ei->mu = mu2;
-                    ei->shift = malloc(c->nmv * sizeof *ei->shift);
-                    if (ei->shift == NULL) {
-                        fail(c, SW_ENOMEM, "out of memory");
-                        rc = -1;
-                        goto done;
-                    }
-                    memcpy(ei->shift, shift + (size_t)J * c->nmv, c->nmv * sizeof *ei->shift);
-                    int top = J;
-                    while (top > 0 && alive[top - 1] && shiftok[top - 1] &&
-                           memcmp(shift + (size_t)(top - 1) * c->nmv, ei->shift,
-                                  c->nmv * sizeof *shift) == 0) {
-                        int mt = 0;
-                        for (int t = 0; t < 2; t++)
-                            mt |= cabs(y[top - 1][t] - yy) <= RATIO_TOL * fmax(1.0, cabs(yy));
-                        if (!mt)
-                            break;
-                        top--;
-                    }
-                    ei->reach = top == 0 ? X0 : r[top];
-                }
-            }
+            if (p > 0)
+                break;
         }
     }
 numeric:
@@ -1215,9 +1247,21 @@ static int lag_rule(ictx *c, const zmap *m, const endinfo *ei, double X, int n,
         double complex G = F / xa;
         double complex dl = lx - clog(xh);
         if (cabs(dl) > 1e-12) {
-            double complex F1 = eval_shifted(c, m, &c->g, ei->shift, 1);
-            double complex A = (F1 / ei->mu - F) / CMPLX(0.0, 2 * PI) / xa;
-            G += A * dl;
+            /* G = P(log x) with P of degree p: interpolate P through its
+               values at log x^ + 2 pi i k (k turns), k = 0..p */
+            int p = ei->logdeg;
+            double complex hk[LOG_DEGREE_MAX + 1], t0 = clog(xh), P = 0;
+            hk[0] = G;
+            for (int k = 1; k <= p; k++)
+                hk[k] = eval_shifted(c, m, &c->g, ei->shift, k) / cpow(ei->mu, k) / xa;
+            for (int k = 0; k <= p; k++) {
+                double complex l = hk[k];
+                for (int i2 = 0; i2 <= p; i2++)
+                    if (i2 != k)
+                        l *= (lx - (t0 + CMPLX(0.0, 2 * PI * i2))) / CMPLX(0.0, 2 * PI * (k - i2));
+                P += l;
+            }
+            G = P;
         }
         if (!finite_c(G)) {
             rc = -1;
@@ -1445,7 +1489,8 @@ static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int
         *rule = SW_RULE_NONE;
         return qag_map(c, m, 0, X, tol_abs, val, abserr, ok);
     }
-    if (ei->kind == END_LOG && creal(ei->alpha) > -1) {
+    if (ei->kind == END_LOG && creal(ei->alpha) > -1 &&
+        (ei->logdeg == 1 || (cimag(ei->alpha) == 0 && depth < LOG_SPLIT_DEPTH))) {
         if (cimag(ei->alpha) == 0 && depth < LOG_SPLIT_DEPTH) {
             *rule = SW_RULE_LAGUERRE;
             if (lag_c(c, m, ei, X, tol_abs, val, abserr, ok) != 0)

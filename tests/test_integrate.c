@@ -17,7 +17,7 @@
  *    practice, no source);
  *  - DLMF 25.12.2: Li2(1) = -int_0^1 log(1-t)/t dt, reference gsl_sf_dilog;
  *  - DLMF 5.12.1 differentiated in a (and in a and b), with DLMF 5.15.1:
- *    int_0^1 t^(a-1) log t dt = -1/a^2 and
+ *    int_0^1 t^(a-1) log^n t dt = (-1)^n n! / a^(n+1) and
  *    int_0^1 log t log(1-t) dt = 2 - pi^2/6 (gsl_sf_psi_1 for psi'(2));
  *  - DLMF 15.6.1 (Euler's integral of 2F1) and DLMF 13.4.1 (of 1F1) for
  *    random exponents, evaluated by mpmath (/usr/bin/python3, Debian's
@@ -276,6 +276,18 @@ static void test_log_ends(void **state)
     }
     ires x = integ("log(1-z)/z", 0, NULL, "0; 1", 0, NULL);
     check_value(&x, -gsl_sf_dilog(1.0), "int_0^1 log(1-z)/z dz", "DLMF 25.12.2, gsl_sf_dilog");
+    sw_integral_clear(&x.r);
+    /* powers of the logarithm: int_0^1 t^(a-1) log^n t dt = (-1)^n n! / a^(n+1)
+       (DLMF 5.12.1 differentiated n times in a) */
+    x = integ("log(z)^2", 0, NULL, "0; 1", 0, NULL);
+    check_value(&x, 2, "int_0^1 log^2 z dz", "DLMF 5.12.1 differentiated twice in a");
+    sw_integral_clear(&x.r);
+    x = integ("z^(-0.5)*log(z)^2", 0, NULL, "0; 1", 0, NULL);
+    check_value(&x, 16, "int_0^1 z^(-1/2) log^2 z dz", "DLMF 5.12.1 differentiated twice in a");
+    sw_integral_clear(&x.r);
+    x = integ("z^0.25*log(z)^3", 0, NULL, "0; 1", 0, NULL);
+    check_value(&x, -6 / pow(1.25, 4), "int_0^1 z^(1/4) log^3 z dz",
+                "DLMF 5.12.1 differentiated three times in a");
     sw_integral_clear(&x.r);
     x = integ("log(z)*log(1-z)", 0, NULL, "0; 1", 0, NULL);
     check_value(&x, 1.0 - gsl_sf_psi_1(2.0), "int_0^1 log z log(1-z) dz",

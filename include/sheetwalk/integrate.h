@@ -6,25 +6,37 @@
  * path by the tracker.  Quadrature points are evaluated from the tracker's
  * dense log, so the branch is never re-chosen.
  *
- * Methods (the numbers below are defaults of sw_integrate_opts):
+ * Methods:
  *   - smooth pieces: adaptive Gauss-Kronrod (GSL QAG, 21-point rule) on the
  *     real and imaginary parts, sharing every integrand value (R. Piessens
  *     et al., QUADPACK, Springer 1983);
  *   - an end of the path at a branch point, a pole or an operand zero (a
- *     "singular end"): the local behaviour x^alpha H(x^(1/q)) of the integrand
- *     in the distance x from the end is detected automatically: alpha mod 1/q
- *     and q from continuation around small circles (the ratio after q turns
- *     is exp(2 pi i q alpha) at every radius), the integer part from the
- *     decay of |f| at geometric distances.  Such ends are integrated by
- *     Gauss-Jacobi rules (GSL gsl_integration_fixed) in s = x^(1/q) with the
- *     weight s^(q(alpha+1)-1), so that only the analytic H is sampled;
- *     x^alpha (A(x) log x + B(x)) ends of expressions (logarithms) are split
- *     into A and B by the shift one turn applies to the logarithms, and
- *     integrated with GSL QAWS (algebraic-logarithmic weights); anything else
- *     falls back to the double-exponential (tanh-sinh) rule of H. Takahasi,
- *     M. Mori, Publ. RIMS 9 (1974) 721-741, with the innermost tail taken
- *     from the local power law and its uncertainty added to abserr.  An end
- *     with Re alpha <= -1 is not integrable and is refused (SW_EINPUT);
+ *     "singular end"): the local behaviour of F(x) = R dz/dx in the distance
+ *     x from the end is detected automatically, by continuation around
+ *     circles |x| = r on a ladder of radii (X/16 ... X/65536): after q turns
+ *     F is multiplied by exp(2 pi i q alpha) at every radius exactly when
+ *     F = x^alpha H(x^(1/q)) with H single-valued near the end, which gives
+ *     alpha modulo 1/q to rounding; its integer part comes from the decay of
+ *     |F| along the ladder (Aitken's delta-squared).  Loops that disagree at
+ *     larger radii reveal another singular point nearby and bound the zone.
+ *     Such ends are integrated by Gauss-Jacobi rules (GSL
+ *     gsl_integration_fixed) in s = x^(1/q) with the weight
+ *     s^(q(alpha+1)-1), so that only the analytic H is sampled, of orders
+ *     4, 8, ..., 64 until the geometric error estimate is met (the zone
+ *     shrinks towards the end when it is not).  Each value H = F / x^alpha
+ *     uses the local coordinate of the point where the germ actually is, so
+ *     rounding of z0 + x dir next to an end z0 != 0 does not spoil it;
+ *   - logarithmic ends of expressions, F = x^alpha P(log x) with P of degree
+ *     <= 3 (coefficients analytic): recognised by shifting the logarithms of
+ *     the operands by whole turns; integrated by Gauss-Laguerre in
+ *     u = (alpha + 1) log(X/x), where F x^-alpha is a polynomial in u plus
+ *     decaying terms (GSL QAWS, weights x^alpha and x^alpha log x, as a
+ *     fallback for degree 1);
+ *   - anything else falls back to the double-exponential (tanh-sinh) rule of
+ *     H. Takahasi, M. Mori, Publ. RIMS 9 (1974) 721-741, with the innermost
+ *     tail taken from the local power law and its uncertainty in abserr.  An
+ *     end with Re alpha <= -1 (or growing faster than any power) is not
+ *     integrable and is refused (SW_EINPUT);
  *   - 'inf' ends: the ray z = z_e + u d, u in [0, inf), is mapped to
  *     s = L/(u + L) in (0, 1] and the point at infinity is treated as a
  *     singular end in s; the integrand must decay faster than 1/|z|
@@ -35,7 +47,9 @@
  *     (L. N. Trefethen, J. A. C. Weideman, SIAM Review 56 (2014) 385-458),
  *     when the integrand returns to its start value after the turn, else by
  *     QAG in the angle.  The circle is used only when continuation along it
- *     ends on the same branch as along the polygon.
+ *     ends on the same branch as along the polygon;
+ *   - curves: the tracked root is polished by one Newton step from the exact
+ *     coefficients in long double before R is evaluated.
  *
  * Branch conventions.  The branch is fixed at vertex VERTEX (0-based, finite
  * vertices) to the sheet nearest *W (W NULL: the principal branch of every
@@ -50,8 +64,10 @@
  * above, x-i0: below) and refused without a mark.
  *
  * Results are numerical, not proofs: "certified" is always 0.  abserr is an
- * estimate from the quadrature rules (differences between rules of two
- * orders, Kronrod extensions), plus rounding and tail terms. */
+ * estimate from the quadrature rules (Kronrod extensions, differences of
+ * rules of increasing order with their geometric decay), plus the rounding
+ * of integrand values next to singular ends (a cancellation model and a
+ * measured noise level), plus tail terms. */
 #ifndef SHEETWALK_INTEGRATE_H
 #define SHEETWALK_INTEGRATE_H
 
