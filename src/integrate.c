@@ -41,8 +41,7 @@ static const double EPS = 2.220446049250313e-16;
 #define RATIO_TOL 1e-8     /* two radii agree on the ratio after q turns (relative) */
 #define SAME_OPERAND 1e-9  /* a turn left an operand unchanged (relative) */
 #define RADIUS_RETRIES 3   /* shrink the loop radii (by 16) this often before giving up */
-#define GJ_FIRST 4         /* Gauss-Jacobi orders 4, 8, 16, 32, 64 */
-#define GJ_LAST 64
+#define GJ_FIRST 4         /* the first Gauss-Jacobi order (see gj_c) */
 #define SPLIT_DEPTH 6      /* Jacobi zone [0, X] shrinks to [0, X/4^6] at most */
 #define LOG_SPLIT_DEPTH 3  /* Laguerre zone: to [0, X/4^2] at most, then QAWS */
 #define BRIDGE_INSET 1e-9  /* half-circle radius (relative to the path scale) that
@@ -709,19 +708,20 @@ static double complex eval_shifted_powers(ictx *c, const zmap *m, const sw_germ 
 
 #define LOG_DEGREE_MAX 3
 
-/* h_k = F_k / mu^k for k = 0..p+1 at the germ G: a polynomial of degree p in
- * k exactly when its (p+1)-th difference vanishes.  Returns the least such
- * p in 1..LOG_DEGREE_MAX, or 0. */
+/* h_k = F_k / mu^k at the germ G (F_0 = FK0 and F_1 = FK1 already known):
+ * a polynomial of degree p in k exactly when its (p+1)-th difference
+ * vanishes.  Returns the least such p in 1..LOG_DEGREE_MAX (values computed
+ * only as far as needed), or 0. */
 static int log_poly_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shift,
-                           double complex mu)
+                           double complex mu, double complex Fk0, double complex Fk1)
 {
     double complex h[LOG_DEGREE_MAX + 2];
-    double big = 0;
-    for (int k = 0; k <= LOG_DEGREE_MAX + 1; k++) {
-        h[k] = eval_shifted(c, m, g, shift, k) / cpow(mu, k);
-        big = fmax(big, cabs(h[k]));
-    }
+    h[0] = Fk0;
+    h[1] = Fk1 / mu;
+    double big = fmax(cabs(h[0]), cabs(h[1]));
     for (int p = 1; p <= LOG_DEGREE_MAX; p++) {
+        h[p + 1] = eval_shifted(c, m, g, shift, p + 1) / cpow(mu, p + 1);
+        big = fmax(big, cabs(h[p + 1]));
         /* (p+1)-th and p-th differences at 0 */
         double complex d1 = 0, d0 = 0;
         double b1 = 1, b0 = 1;
@@ -739,24 +739,22 @@ static int log_poly_degree(ictx *c, const zmap *m, const sw_germ *g, const long 
     return 0;
 }
 
-/* Look for a logarithmic end (see analyze_end); fills EI and returns the
- * degree p, 0 when the end is not of that kind, -1 on failure. */
+/* Look for a logarithmic end (see analyze_end) from the values F0 and, after
+ * one turn, F1 on the ladder; fills EI and returns the degree p, 0 when the
+ * end is not of that kind, -1 on failure. */
 static int log_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shift, int J,
-                      int nr, const int *alive, const int *shiftok, const double *r, double X0,
-                      endinfo *ei)
+                      const double complex *F0, const double complex *F1, const int *alive,
+                      const int *shiftok, const double *r, double X0, endinfo *ei)
 {
-    (void)nr;
     if (!alive[J] || !alive[J - 1] || !shiftok[J] || !shiftok[J - 1])
         return 0;
     const long *sJ = shift + (size_t)J * c->nmv, *sJ1 = shift + (size_t)(J - 1) * c->nmv;
-    double complex F0 = eval_shifted(c, m, &g[J], sJ, 0);
-    double complex F1 = eval_shifted(c, m, &g[J - 1], sJ1, 0);
-    double complex mu = eval_shifted_powers(c, m, &g[J], sJ, 1) / F0;
-    double complex mu1 = eval_shifted_powers(c, m, &g[J - 1], sJ1, 1) / F1;
+    double complex mu = eval_shifted_powers(c, m, &g[J], sJ, 1) / F0[J];
+    double complex mu1 = eval_shifted_powers(c, m, &g[J - 1], sJ1, 1) / F0[J - 1];
     if (!finite_c(mu) || cabs(mu - mu1) > RATIO_TOL * fmax(1.0, cabs(mu)))
         return 0;
-    int p = log_poly_degree(c, m, &g[J], sJ, mu);
-    if (p == 0 || log_poly_degree(c, m, &g[J - 1], sJ1, mu) != p)
+    int p = log_poly_degree(c, m, &g[J], sJ, mu, F0[J], F1[J]);
+    if (p == 0 || log_poly_degree(c, m, &g[J - 1], sJ1, mu, F0[J - 1], F1[J - 1]) != p)
         return 0;
     ei->kind = END_LOG;
     ei->q = 1;
@@ -773,10 +771,9 @@ static int log_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shif
     while (top > 0 && alive[top - 1] && shiftok[top - 1] &&
            memcmp(shift + (size_t)(top - 1) * c->nmv, sJ, c->nmv * sizeof *sJ) == 0) {
         const long *st = shift + (size_t)(top - 1) * c->nmv;
-        double complex Ft = eval_shifted(c, m, &g[top - 1], st, 0);
-        double complex mt = eval_shifted_powers(c, m, &g[top - 1], st, 1) / Ft;
+        double complex mt = eval_shifted_powers(c, m, &g[top - 1], st, 1) / F0[top - 1];
         if (cabs(mt - mu) > RATIO_TOL * fmax(1.0, cabs(mu)) ||
-            log_poly_degree(c, m, &g[top - 1], st, mu) != p)
+            log_poly_degree(c, m, &g[top - 1], st, mu, F0[top - 1], F1[top - 1]) != p)
             break;
         top--;
     }
@@ -841,7 +838,7 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
     }
     int shiftmode = 0;
     for (size_t k = 1; k <= qmax && ei->kind == END_REGULAR; k++) {
-        double complex ratio[NRADII];
+        double complex ratio[NRADII] = {0};
         for (int j = 0; j < nr; j++) {
             if (!alive[j])
                 continue;
@@ -893,7 +890,10 @@ static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
                only the powers' logarithms by one turn multiplies F by
                mu = exp(2 pi i alpha); shifting all of them k times gives
                mu^k P(log x + 2 pi i k), a polynomial of degree p in k */
-            int p = log_degree(c, m, g, shift, J, nr, alive, shiftok, r, X0, ei);
+            double complex F1[NRADII];
+            for (int j = 0; j < nr; j++)
+                F1[j] = ratio[j] * F0[j];
+            int p = log_degree(c, m, g, shift, J, F0, F1, alive, shiftok, r, X0, ei);
             if (p < 0) {
                 rc = -1;
                 goto done;
@@ -1100,22 +1100,27 @@ static int gj_rule(ictx *c, const zmap *m, const zmap *mb, double X, int q, doub
     return rc;
 }
 
-/* Orders GJ_FIRST, 2 GJ_FIRST, ... until two agree within TOL. */
+/* Orders 4, 8, 16, 24, ... until the error estimate is met (or rounding).
 static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double alpha,
                 double beta, double tol_abs, double complex *Iv, double *err, int *ok)
 {
     double complex prev = 0, cur = 0;
     double asum = 0, rnd = 0, dprev = INFINITY;
     *ok = 0;
-    for (int n = GJ_FIRST; n <= GJ_LAST; n *= 2) {
+    /* orders 4, 8, 16, 24, 32, 48, 64: steps of a third to a half, so that a
+       rule is not much larger than needed */
+    static const int orders[] = {4, 8, 16, 24, 32, 48, 64};
+    for (size_t io = 0; io < sizeof orders / sizeof orders[0]; io++) {
+        int n = orders[io];
         if (gj_rule(c, m, mb, X, q, alpha, beta, n, &cur, &asum, &rnd) != 0)
             return -1;
         if (n > GJ_FIRST) {
             /* H is analytic near [0, X]: the error of the rule falls
-               geometrically, squaring (in relative terms) with each doubling
-               of n, so the error of the newer rule is about d^2 / dprev
-               (d, dprev: the last two differences); a factor 10 of safety,
-               and never more than d itself */
+               geometrically in n; with differences d, dprev of the last two
+               pairs of rules (d about the error of the older rule), the
+               newer rule's error is at most about d^2 / dprev when the order
+               grows by at least as much as in the pair before (as here); a
+               factor 10 of safety, and never more than d itself */
             double d = cabs(cur - prev);
             double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
             e += 50 * EPS * asum;
