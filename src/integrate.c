@@ -1100,7 +1100,7 @@ static int gj_rule(ictx *c, const zmap *m, const zmap *mb, double X, int q, doub
     return rc;
 }
 
-/* Orders 4, 8, 16, 24, ... until the error estimate is met (or rounding).
+/* Orders 4, 8, 16, 24, ... until the error estimate is met (or rounding). */
 static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double alpha,
                 double beta, double tol_abs, double complex *Iv, double *err, int *ok)
 {
