@@ -46,7 +46,7 @@ def cases():
 
 
 def run_mpmath(f, interval, ref):
-    for dps in (15, 20, 25, 30, 35, 40, 50, 60, 80):
+    for dps in (15, 20, 25, 30, 35, 40, 50, 60, 80, 100, 120, 150, 200):
         mp.mp.dps = dps
         count = [0]
 
