@@ -21,6 +21,7 @@
 #include <flint/fmpq.h>
 #include <mpfr.h>
 
+#include <float.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -141,6 +142,7 @@ typedef struct ictx {
     int expr;
     size_t nmv;
     const sw_curve *curve;     /* curves: the polynomial (root polishing) */
+    int quick;                 /* quadrature points of curves by quick_root */
     long double complex *ld;   /* its exact coefficients in long double */
     long ldm, ldn;
     sw_status st;              /* first failure inside a quadrature callback */
@@ -320,6 +322,127 @@ static double complex germ_value(const ictx *c, const sw_germ *g)
     return c->ld ? polish_root(c, g) : sw_func_value(c->f, g);
 }
 
+/* Walk G straight to Z in as many equal steps as the engine needs (at most
+ * MAX_PIECES). */
+static int nudge(ictx *c, sw_germ *g, double complex z, int max_pieces)
+{
+    double complex a = g->z;
+    for (int pieces = 1; pieces <= max_pieces; pieces *= 2) {
+        sw_germ_copy(&c->h, g);
+        int good = 1;
+        for (int k = 1; k <= pieces && good; k++) {
+            double complex t = k == pieces ? z : a + (z - a) * ((double)k / pieces);
+            good = sw_func_advance(&c->k, &c->h, t, c->f, &c->o->track.step, NULL) == SW_STEP_OK;
+            if (good)
+                sw_germ_copy(&c->h, &c->k);
+        }
+        if (good) {
+            sw_germ_copy(g, &c->h);
+            return 0;
+        }
+    }
+    return -1;
+}
+
+/* The germ on line L at parameter T, from its dense log: the last logged germ
+ * at or before T, walked straight to the point (what sw_trace_germ_at does,
+ * without its per-call allocation; it remains the fallback). */
+static int log_germ_at(ictx *c, const tline *l, double t, sw_germ *g)
+{
+    const sw_trace *tr = &l->tr;
+    if (tr->nlog == 0)
+        return -1;
+    size_t lo = 0, hi = tr->nlog - 1;
+    if (t <= tr->t[0])
+        hi = 0;
+    while (lo < hi) {
+        size_t mid = (lo + hi + 1) / 2;
+        if (tr->t[mid] <= t)
+            lo = mid;
+        else
+            hi = mid - 1;
+    }
+    g->z = tr->z[lo];
+    g->sheet = tr->sheet[lo];
+    g->bank = SW_BANK_NONE;
+    memcpy(g->s, tr->state + lo * tr->len, tr->len * sizeof *g->s);
+    double complex target = sw_path_point(&l->path, t);
+    if (g->z == target)
+        return 0;
+    return nudge(c, g, target, 16);
+}
+
+/* Curves, quadrature points only: the selected root at parameter T of line L
+ * from the nearest logged germ at or before T by a first-order predictor and
+ * Newton steps on that root alone (in long double, from the exact
+ * coefficients), instead of a step of the whole fiber.  Accepted only when
+ * the root moved by less than a tenth of its distance to the other roots of
+ * the logged fiber and Newton converged, the same kind of test the curve
+ * engine applies to its steps; otherwise -1 (the caller takes the engine's
+ * step).  The germ itself is not produced: callers use only the point. */
+static int quick_root(const ictx *c, const tline *l, double t, double complex z1,
+                      double complex *wout)
+{
+    const sw_trace *tr = &l->tr;
+    if (c->ld == NULL || tr->nlog == 0)
+        return -1;
+    size_t lo = 0, hi = tr->nlog - 1;
+    if (t <= tr->t[0])
+        hi = 0;
+    while (lo < hi) {
+        size_t mid = (lo + hi + 1) / 2;
+        if (tr->t[mid] <= t)
+            lo = mid;
+        else
+            hi = mid - 1;
+    }
+    const double complex *fib = tr->state + lo * tr->len;
+    size_t n = tr->len, sheet = (size_t)tr->sheet[lo];
+    double complex z0 = tr->z[lo], w0 = fib[sheet];
+    double sep = n > 1 ? sw_fiber_sep(fib, n, sheet) : cabs(w0) + 1;
+    /* predictor and Newton in double on the engine's coefficients ... */
+    const sw_curve *cv = c->curve;
+    long m = cv->m, nd = cv->n;
+    double complex w = w0;
+    int conv = 0;
+    for (int it = 0; it < 5 && !conv; it++) {
+        double complex zz = it == 0 ? z0 : z1, P = 0, Pw = 0, Pz = 0;
+        for (long j = nd; j >= 0; j--) {
+            const double complex *cc = cv->c + j * (m + 1);
+            double complex a = cc[m], da = 0;
+            for (long k = m - 1; k >= 0; k--) {
+                da = da * zz + a;
+                a = a * zz + cc[k];
+            }
+            Pw = Pw * w + P;
+            P = P * w + a;
+            Pz = Pz * w + da;
+        }
+        if (Pw == 0)
+            return -1;
+        double complex dw = it == 0 ? -Pz / Pw * (z1 - z0) : -P / Pw;
+        w += dw;
+        conv = it >= 2 && cabs(dw) <= 1e-13 * cabs(w) + 1e-300;
+    }
+    if (!conv || !(cabs(w - w0) <= 0.1 * sep))
+        return -1;
+    /* ... then one step in long double from the exact coefficients */
+    long lm = c->ldm, ln = c->ldn;
+    long double complex zl = z1, wl = w, P = 0, Pw = 0;
+    for (long j = ln; j >= 0; j--) {
+        const long double complex *cc = c->ld + j * (lm + 1);
+        long double complex a = cc[lm];
+        for (long k = lm - 1; k >= 0; k--)
+            a = a * zl + cc[k];
+        Pw = Pw * wl + P;
+        P = P * wl + a;
+    }
+    if (Pw != 0 && cabsl(P / Pw) <= 1e-3L * sep)
+        wl -= P / Pw;
+    *wout = (double complex)wl;
+    return 0;
+}
+
 /* F(x) = R(z, w) dz/dx on the tracked branch, at the logged germ nearest the
  * point z(x); *XH receives the local coordinate of the point actually used,
  * c->g the germ there. */
@@ -332,7 +455,18 @@ static int eval_F(ictx *c, const zmap *m, double x, double complex *F, double co
     sw_error e;
     if (l == NULL)
         return fail(c, SW_EINTERNAL, "no tracked line for a quadrature point"), -1;
-    if (sw_trace_germ_at(&c->g, &l->tr, c->f, t, &l->path, &e) != SW_OK) {
+    double complex zq = sw_path_point(&l->path, t), wq;
+    if (c->quick && quick_root(c, l, t, zq, &wq) == 0) {
+        c->g.z = zq; /* only the point is used by the caller (see quick_root) */
+        double complex Xq = map_x(m, zq);
+        *F = integrand_at(c, zq, wq) * map_jac(m, Xq);
+        if (xh)
+            *xh = Xq;
+        c->evals++;
+        return 0;
+    }
+    if (log_germ_at(c, l, t, &c->g) != 0 &&
+        sw_trace_germ_at(&c->g, &l->tr, c->f, t, &l->path, &e) != SW_OK) {
         /* a point a rounding error away from an inset end (next to a
            singular end the engine may refuse even a tiny step): the logged
            germ at the end is as good, the local coordinate of the point
@@ -788,7 +922,19 @@ static int log_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shif
  * path passes within 1e-7 of the zone's size from another singular point);
  * the largest radius up to which every loop agrees bounds the zone in which
  * the local expansion holds (another singular point lies beyond it). */
+static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei);
+
+/* (the analysis keeps real germs: no quick roots) */
 static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
+{
+    int q = c->quick;
+    c->quick = 0;
+    int rc = analyze_end_body(c, m, X0, ei);
+    c->quick = q;
+    return rc;
+}
+
+static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei)
 {
     memset(ei, 0, sizeof *ei);
     ei->reach = X0;
@@ -1770,26 +1916,6 @@ done:
 
 /* ------------------------------------------------------------ circles */
 
-/* Walk G straight to Z in as many equal steps as the engine needs. */
-static int nudge(ictx *c, sw_germ *g, double complex z)
-{
-    double complex a = g->z;
-    for (int pieces = 1; pieces <= 1 << 12; pieces *= 2) {
-        sw_germ_copy(&c->h, g);
-        int good = 1;
-        for (int k = 1; k <= pieces && good; k++) {
-            double complex t = k == pieces ? z : a + (z - a) * ((double)k / pieces);
-            good = sw_func_advance(&c->k, &c->h, t, c->f, &c->o->track.step, NULL) == SW_STEP_OK;
-            if (good)
-                sw_germ_copy(&c->h, &c->k);
-        }
-        if (good) {
-            sw_germ_copy(g, &c->h);
-            return 0;
-        }
-    }
-    return -1;
-}
 
 typedef struct circfn {
     ictx *c;
@@ -1825,7 +1951,14 @@ static int circle_eval(void *arg, double tau, double complex *v, double complex 
     double complex z = pc->centre + pc->radius * CMPLX(cos(th), sin(th));
     if (tau == 0 || tau == 2 * PI)
         z = l->p;
-    if (nudge(c, &c->g, z) != 0)
+    double complex wq;
+    if (c->quick && quick_root(c, l, t, z, &wq) == 0) {
+        c->g.z = z;
+        *v = integrand_at(c, z, wq) * CMPLX(0.0, (double)pc->orient) * (z - pc->centre);
+        c->evals++;
+        return 0;
+    }
+    if (nudge(c, &c->g, z, 1 << 12) != 0)
         return fail(c, SW_ESINGULAR, "cannot reach a point of the circle from the polygon "
                                      "(a singular point lies between them)"), -1;
     double complex w = germ_value(c, &c->g);
@@ -1856,7 +1989,7 @@ static int integrate_circle(ictx *c, const piece *pc, int *all_ok, double *tol_s
         double complex zz = pc->centre + pc->radius * CMPLX(cos(pc->theta0 + pc->orient * dth),
                                                             sin(pc->theta0 + pc->orient * dth));
         sw_germ_copy(&c->g, &l->tr.vert[l->tr.nvert - 1]);
-        if (nudge(c, &c->g, zz) == 0) {
+        if (nudge(c, &c->g, zz, 1 << 12) == 0) {
             double complex wa = sw_func_value(c->f, &c->g);
             F1 = integrand_at(c, c->g.z, wa);
             if (circle_eval(&cf, dth, &F0, NULL) != 0)
@@ -2109,6 +2242,7 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
     c.expr = sw_func_kind_of(f) == SW_FUNC_EXPR;
     c.nmv = c.expr ? sw_expr_mv_count(sw_func_expr(f)) : 0;
     c.curve = sw_func_kind_of(f) == SW_FUNC_CURVE ? sw_curve_of(f) : NULL;
+    c.quick = c.curve != NULL;
     if (c.curve && ld_coeffs(&c) != 0)
         return sw_error_set(err, SW_ENOMEM, "out of memory");
     piece *pcs = NULL;
