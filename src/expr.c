@@ -763,7 +763,7 @@ int sw_expr_eval_step(double complex *value, double complex *new_state, const sw
             double complex u = vals[nd->a], u0 = old_state[2 * m];
             double ur = creal(u), ui = cimag(u);
             double a2 = ur * ur + ui * ui, b2 = creal(u0) * creal(u0) + cimag(u0) * cimag(u0);
-            if (a2 == 0 || !isfinite(a2) || !finite_c(u))
+            if (u == 0 || !finite_c(u))
                 return -2 - m;
             double complex r = tame(a2) && tame(b2) ? u * conj(u0) / b2 : u / u0;
             double dr = creal(r) - 1, di = cimag(r);

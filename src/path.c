@@ -212,9 +212,11 @@ sw_status sw_path_parse(sw_path *out, const char *text, const char *origin,
                 }
                 if (k == 0 && p.n > 0 && p.z[p.n - 1] == v)
                     continue;
-                st = sw_path_push(&p, v, SW_BANK_NONE, err);
-                if (st != SW_OK)
+                if (sw_path_push(&p, v, SW_BANK_NONE, &e2) != SW_OK) {
+                    st = sw_error_set(err, e2.code, "%s %s %zu: circle: %s", what, unit, lineno,
+                                      e2.msg);
                     goto cleanup;
+                }
             }
             continue;
         }
