@@ -218,6 +218,31 @@ static void test_bad_input(void **state)
     json_decref(run_integrate(b6, 3));
     const char *b7[] = {"-f", "sqrt(z)", "-p", "1; 2", "--start", "nan", NULL};
     json_decref(run_integrate(b7, 3));
+    /* two sheets equally near the given value: ambiguous, exit 3 */
+    const char *b8[] = {"-c", "w^2-z", "-p", "1; 2", "--start", "0", NULL};
+    json_decref(run_integrate(b8, 3));
+}
+
+/* A tolerance that is not met: exit 1, the result still printed and flagged
+ * (an oscillating integrand on a ray: no power law at infinity). */
+static void test_tolerance_not_met(void **state)
+{
+    (void)state;
+    const char *argv[] = {"sheetwalk", "integrate", "-f", "sin(z)/z^2", "-p", "1; 2; inf",
+                          "--json", NULL};
+    cli_result r = cli_run(NULL, argv);
+    assert_int_equal(r.code, 1);
+    assert_int_equal(cr_lines(r.err), 1);
+    assert_true(strncmp(r.err, "sheetwalk: integrate: ", 22) == 0);
+    json_error_t je;
+    json_t *d = json_loads(r.out, 0, &je);
+    assert_non_null(d);
+    assert_true(json_is_false(json_object_get(d, "converged")));
+    double abserr = json_number_value(json_object_get(d, "abserr"));
+    double complex v = jcplx(d, "value");
+    assert_true(abserr > 1e-10 * cabs(v));
+    json_decref(d);
+    cli_result_clear(&r);
 }
 
 int main(void)
@@ -227,6 +252,7 @@ int main(void)
         cmocka_unit_test(test_bank),
         cmocka_unit_test(test_human_and_help),
         cmocka_unit_test(test_bad_input),
+        cmocka_unit_test(test_tolerance_not_met),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
