@@ -18,6 +18,7 @@
 
 #include <acb_poly.h>
 #include <arf.h>
+#include <flint/fmpq_mpoly.h>
 #include <flint/fmpq_poly.h>
 #include <flint/fmpz_poly.h>
 #include <flint/fmpz_poly_factor.h>
@@ -545,6 +546,261 @@ static void leading_exponent(sw_points *res, const sw_func *f, double R)
     sw_germ_clear(&h);
 }
 
+/* --------------------------------------- nested roots: elimination by resultants */
+
+/* An operand built from z, real rational constants, + - * /, integer powers
+ * and inner roots / rational powers y_j = U_j^(p/q) is a rational function of
+ * z and the y_j.  With the relations y_j^q B_j^p - A_j^p = 0 (U_j = A_j/B_j,
+ * p > 0; swapped for p < 0), the resultants Res_{y_j} eliminate the inner
+ * roots one by one (outermost first), leaving a polynomial in z whose roots
+ * contain the zeros (or poles) of the operand on every branch of the inner
+ * roots.  Variables: 0 = z, 1 + j = y_j (multivalued node j). */
+
+#define ALG_MAX_DEGREE 400 /* beyond this the elimination is abandoned */
+
+typedef struct mrat {
+    fmpq_mpoly_t num, den;
+} mrat;
+
+static void mrat_init(mrat *r, const fmpq_mpoly_ctx_t ctx)
+{
+    fmpq_mpoly_init(r->num, ctx);
+    fmpq_mpoly_init(r->den, ctx);
+}
+
+static void mrat_clear(mrat *r, const fmpq_mpoly_ctx_t ctx)
+{
+    fmpq_mpoly_clear(r->num, ctx);
+    fmpq_mpoly_clear(r->den, ctx);
+}
+
+/* p/q for a real exponent with q <= 64, else 0. */
+static int rational_exponent(long *p, long *q, double complex c)
+{
+    if (cimag(c) != 0)
+        return 0;
+    for (long d = 1; d <= 64; d++) {
+        double n = creal(c) * (double)d;
+        if (fabs(n - nearbyint(n)) < 1e-12 * (double)d && fabs(n) < 1e6) {
+            *p = (long)nearbyint(n);
+            *q = d;
+            return 1;
+        }
+    }
+    return 0;
+}
+
+static int build_alg(mrat *out, const sw_expr *e, int k, const fmpq_mpoly_ctx_t ctx)
+{
+    const sw_node *nd = &e->node[k];
+    mrat a, b;
+    int ok = 1;
+    mrat_init(&a, ctx);
+    mrat_init(&b, ctx);
+    fmpq_t q;
+    fmpq_init(q);
+    switch (nd->kind) {
+    case N_CONST:
+        if (cimag(nd->c) != 0) {
+            ok = 0;
+            break;
+        }
+        fmpq_set_double(q, creal(nd->c));
+        fmpq_mpoly_set_fmpq(out->num, q, ctx);
+        fmpq_mpoly_one(out->den, ctx);
+        break;
+    case N_Z:
+        fmpq_mpoly_gen(out->num, 0, ctx);
+        fmpq_mpoly_one(out->den, ctx);
+        break;
+    case N_POW: {
+        long pp, qq;
+        if (!rational_exponent(&pp, &qq, nd->c)) {
+            ok = 0;
+            break;
+        }
+        fmpq_mpoly_gen(out->num, 1 + nd->mv, ctx);
+        fmpq_mpoly_one(out->den, ctx);
+        break;
+    }
+    case N_NEG:
+        ok = build_alg(out, e, nd->a, ctx);
+        if (ok)
+            fmpq_mpoly_neg(out->num, out->num, ctx);
+        break;
+    case N_ADD: case N_SUB: case N_MUL: case N_DIV:
+        ok = build_alg(&a, e, nd->a, ctx) && build_alg(&b, e, nd->b, ctx);
+        if (!ok)
+            break;
+        if (nd->kind == N_MUL) {
+            fmpq_mpoly_mul(out->num, a.num, b.num, ctx);
+            fmpq_mpoly_mul(out->den, a.den, b.den, ctx);
+        } else if (nd->kind == N_DIV) {
+            fmpq_mpoly_mul(out->num, a.num, b.den, ctx);
+            fmpq_mpoly_mul(out->den, a.den, b.num, ctx);
+        } else {
+            fmpq_mpoly_t t;
+            fmpq_mpoly_init(t, ctx);
+            fmpq_mpoly_mul(out->num, a.num, b.den, ctx);
+            fmpq_mpoly_mul(t, b.num, a.den, ctx);
+            if (nd->kind == N_ADD)
+                fmpq_mpoly_add(out->num, out->num, t, ctx);
+            else
+                fmpq_mpoly_sub(out->num, out->num, t, ctx);
+            fmpq_mpoly_mul(out->den, a.den, b.den, ctx);
+            fmpq_mpoly_clear(t, ctx);
+        }
+        break;
+    case N_POWI: {
+        ok = build_alg(&a, e, nd->a, ctx);
+        if (!ok)
+            break;
+        ulong n = (ulong)labs(nd->k);
+        if (n > 64) {
+            ok = 0;
+            break;
+        }
+        ok = fmpq_mpoly_pow_ui(out->num, nd->k > 0 ? a.num : a.den, n, ctx) &&
+             fmpq_mpoly_pow_ui(out->den, nd->k > 0 ? a.den : a.num, n, ctx);
+        break;
+    }
+    default:
+        ok = 0; /* logs, general powers, transcendental functions */
+        break;
+    }
+    if (ok && (fmpq_mpoly_total_degree_si(out->num, ctx) > ALG_MAX_DEGREE ||
+               fmpq_mpoly_total_degree_si(out->den, ctx) > ALG_MAX_DEGREE))
+        ok = 0;
+    if (ok && fmpq_mpoly_is_zero(out->den, ctx))
+        ok = 0;
+    fmpq_clear(q);
+    mrat_clear(&a, ctx);
+    mrat_clear(&b, ctx);
+    return ok;
+}
+
+/* Eliminate the y's from P using the relations of the inner roots. */
+static int eliminate(fmpq_poly_t out, const fmpq_mpoly_t P, const sw_expr *e, size_t upto,
+                     const fmpq_mpoly_ctx_t ctx)
+{
+    fmpq_mpoly_t R, rel, t;
+    fmpq_mpoly_init(R, ctx);
+    fmpq_mpoly_init(rel, ctx);
+    fmpq_mpoly_init(t, ctx);
+    fmpq_mpoly_set(R, P, ctx);
+    int ok = 1;
+    for (size_t j = upto; j-- > 0 && ok;) {
+        if (fmpq_mpoly_degree_si(R, (slong)(1 + j), ctx) <= 0)
+            continue;
+        const sw_node *nd = &e->node[e->mv_node[j]];
+        long pp, qq;
+        mrat u;
+        mrat_init(&u, ctx);
+        ok = nd->kind == N_POW && rational_exponent(&pp, &qq, nd->c) &&
+             build_alg(&u, e, nd->a, ctx);
+        if (ok) {
+            /* y^q B^p - A^p (p > 0), y^q A^|p| - B^|p| (p < 0) */
+            fmpq_mpoly_gen(rel, (slong)(1 + j), ctx);
+            ok = fmpq_mpoly_pow_ui(rel, rel, (ulong)qq, ctx) &&
+                 fmpq_mpoly_pow_ui(t, pp > 0 ? u.den : u.num, (ulong)labs(pp), ctx);
+            if (ok) {
+                fmpq_mpoly_mul(rel, rel, t, ctx);
+                ok = fmpq_mpoly_pow_ui(t, pp > 0 ? u.num : u.den, (ulong)labs(pp), ctx);
+                fmpq_mpoly_sub(rel, rel, t, ctx);
+            }
+            if (ok)
+                ok = fmpq_mpoly_resultant(R, R, rel, (slong)(1 + j), ctx);
+            if (ok && fmpq_mpoly_total_degree_si(R, ctx) > ALG_MAX_DEGREE)
+                ok = 0;
+        }
+        mrat_clear(&u, ctx);
+    }
+    if (ok)
+        ok = !fmpq_mpoly_is_zero(R, ctx) && fmpq_mpoly_get_fmpq_poly(out, R, 0, ctx);
+    fmpq_mpoly_clear(R, ctx);
+    fmpq_mpoly_clear(rel, ctx);
+    fmpq_mpoly_clear(t, ctx);
+    return ok;
+}
+
+/* Candidates for node M's operand through elimination.  0 when not possible. */
+static int add_nested_roots(cand_list *c, const sw_expr *e, size_t m)
+{
+    fmpq_mpoly_ctx_t ctx;
+    fmpq_mpoly_ctx_init(ctx, (slong)(1 + e->nmv), ORD_LEX);
+    mrat v;
+    mrat_init(&v, ctx);
+    fmpq_poly_t pn, pd;
+    fmpq_poly_init(pn);
+    fmpq_poly_init(pd);
+    int ok = build_alg(&v, e, e->node[e->mv_node[m]].a, ctx) && eliminate(pn, v.num, e, m, ctx) &&
+             eliminate(pd, v.den, e, m, ctx) && fmpq_poly_degree(pn) <= ALG_MAX_DEGREE &&
+             fmpq_poly_degree(pd) <= ALG_MAX_DEGREE;
+    if (ok) {
+        cpoly cp;
+        cpoly_init(&cp);
+        fmpq_poly_set(cp.re, pn);
+        ok = add_roots(c, &cp);
+        fmpq_poly_set(cp.re, pd);
+        ok = ok && add_roots(c, &cp);
+        cpoly_clear(&cp);
+    }
+    fmpq_poly_clear(pn);
+    fmpq_poly_clear(pd);
+    mrat_clear(&v, ctx);
+    fmpq_mpoly_ctx_clear(ctx);
+    return ok;
+}
+
+/* Is some operand zero or infinite at C on a branch of the inner roots other
+ * than the principal one (tried over the rational exponents' branches)? */
+static int branched_elsewhere(const sw_expr *e, double complex c, double r)
+{
+    size_t m = e->nmv;
+    if (m == 0 || m > 12)
+        return 0;
+    long span[12], cur[12] = {0};
+    double combos = 1;
+    for (size_t k = 0; k < m; k++) {
+        long pp, qq;
+        const sw_node *nd = &e->node[e->mv_node[k]];
+        span[k] = nd->kind == N_POW && rational_exponent(&pp, &qq, nd->c) ? qq : 1;
+        combos *= (double)span[k];
+    }
+    if (combos > 4096)
+        return 0;
+    double complex *st = malloc(2 * m * sizeof *st), *st2 = malloc(2 * m * sizeof *st2);
+    double complex *vals = malloc(e->n * sizeof *vals);
+    int found = 0;
+    for (; st && st2 && vals && !found;) {
+        int principal = 1;
+        for (size_t k = 0; k < m; k++)
+            if (cur[k] != 0)
+                principal = 0;
+        if (!principal) {
+            double complex v;
+            int r1 = sw_expr_shifted_state(&v, st, e, c, 0, cur, vals);
+            int r2 = sw_expr_shifted_state(&v, st2, e, c + r, 0, cur, vals);
+            if (r1 <= -2 && r2 == -1)
+                found = 1;
+            for (size_t k = 0; k < m && !found && r1 == -1 && r2 == -1; k++) {
+                double a = cabs(st[2 * k]), b = cabs(st2[2 * k]);
+                if (a < 1e-7 * b || b < 1e-7 * a)
+                    found = 1;
+            }
+        }
+        size_t k = 0;
+        while (k < m && ++cur[k] == span[k])
+            cur[k++] = 0;
+        if (k == m)
+            break;
+    }
+    free(st);
+    free(st2);
+    free(vals);
+    return found;
+}
+
 sw_status sw_expr_points(sw_points *out, const sw_func *f, const sw_points_opts *o,
                          sw_error *err); /* called through the engine vtable */
 
@@ -570,15 +826,18 @@ sw_status sw_expr_points(sw_points *out, const sw_func *f, const sw_points_opts 
                          "the roots of the operand of '%s' could not be isolated",
                          sw_expr_mv_text(what, sizeof what, e, m));
             }
+        } else if (add_nested_roots(&c, e, m)) {
+            /* a nested root: its candidates come from the elimination */
         } else if (res.complete) {
             res.complete = 0;
             snprintf(res.incomplete, sizeof res.incomplete,
                      bad == 2 ? "the operand of '%s' has too high a degree to expand; its zeros "
                                 "and poles are not listed"
                      : bad == 3 ? "the operand of '%s' is identically infinite"
-                                : "the operand of '%s' is not a rational function of z (it "
-                                  "contains roots, logs or transcendental functions); its zeros "
-                                  "and poles are not listed",
+                                : "the operand of '%s' is not an algebraic function of z built "
+                                  "from rational functions and roots (it contains logs, "
+                                  "irrational or complex-coefficient nesting, or transcendental "
+                                  "functions); its zeros and poles are not listed",
                      sw_expr_mv_text(what, sizeof what, e, m));
         }
         crat_clear(&r);
@@ -606,6 +865,8 @@ sw_status sw_expr_points(sw_points *out, const sw_func *f, const sw_points_opts 
         pt->radius = c.rad[k];
         sw_error e2;
         st = classify(pt, f, c.z[k], r, 0, o->certify, e->nmv, &e2);
+        if (st == SW_OK && pt->kind == SW_POINT_REGULAR)
+            pt->other_sheets = branched_elsewhere(e, c.z[k], r);
         if (st != SW_OK) {
             st = sw_error_set(err, st, "classifying the candidate %.10g%+.10gi: %s",
                               creal(c.z[k]), cimag(c.z[k]), e2.msg);

@@ -43,6 +43,10 @@ typedef struct sw_point {
     int *perm;
     size_t n;
     int certified;            /* 1 when the loop was tracked in certified mode */
+    /* expressions with nested roots: not branched for the principal branch, but
+       an operand vanishes (or has a pole) there on another branch of the inner
+       roots, where the function does branch */
+    int other_sheets;
 } sw_point;
 
 typedef struct sw_points {

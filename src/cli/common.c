@@ -511,6 +511,8 @@ static json_t *point_json(const sw_point *pt, const sw_func *f)
             json_array_append_new(pm, json_integer(pt->perm[i] + 1));
         json_object_set_new(o, "permutation", pm);
     }
+    if (pt->other_sheets)
+        json_object_set_new(o, "other_sheets", json_true());
     json_object_set_new(o, "certified", json_boolean(pt->certified));
     return o;
 }
@@ -574,7 +576,8 @@ static void point_row(FILE *fp, const char *where, const sw_point *pt, const sw_
 {
     char a[64], b[64], cyc[512];
     const char *kind = pt->kind == SW_POINT_BRANCH ? "branch point"
-                       : pt->kind == SW_POINT_POLE ? "pole" : "not branched";
+                       : pt->kind == SW_POINT_POLE ? "pole"
+                       : pt->other_sheets ? "other sheets" : "not branched";
     if (sw_func_kind_of(f) == SW_FUNC_EXPR) {
         const char *what = "";
         if (pt->kind == SW_POINT_BRANCH) {
@@ -609,6 +612,12 @@ void cli_points_table(FILE *fp, const sw_points *pts, const sw_func *f)
     if (pts->complete && sw_func_kind_of(f) == SW_FUNC_EXPR && pts->inf_exponent_ok)
         fprintf(fp, "  (at infinity |f| grows like |z|^%.6g: numerical estimate)\n",
                 pts->inf_exponent);
+    for (size_t k = 0; k < pts->n; k++)
+        if (pts->pt[k].other_sheets) {
+            fprintf(fp, "(other sheets: not branched for the principal branch, but an operand "
+                        "vanishes or has a pole there on another branch of the inner roots)\n");
+            break;
+        }
     if (!pts->complete)
         fprintf(fp, "note: the list may be incomplete: %s.\n", pts->incomplete);
 }
