@@ -936,3 +936,64 @@ sw_status sw_fiber_permutation(int *perm, const sw_func *f, const sw_germ *start
     free(used);
     return st;
 }
+
+/* Zeros of the denominators of an expression (division nodes, negative
+ * integer powers) on every branch of its roots: where a single-valued part of
+ * it may have a pole.  Candidates only (a zero may cancel). */
+sw_status sw_expr_pole_candidates(double complex **out, size_t *n, const sw_func *f,
+                                  sw_error *err)
+{
+    *out = NULL;
+    *n = 0;
+    const sw_expr *e = sw_func_expr(f);
+    if (e == NULL)
+        return SW_OK;
+    cand_list c = {0, 0, NULL, NULL};
+    fmpq_mpoly_ctx_t ctx;
+    fmpq_mpoly_ctx_init(ctx, (slong)(1 + e->nmv), ORD_LEX);
+    int complete = 1;
+    for (size_t k = 0; k < e->n; k++) {
+        const sw_node *nd = &e->node[k];
+        int base;
+        if (nd->kind == N_DIV)
+            base = nd->b;
+        else if (nd->kind == N_POWI && nd->k < 0)
+            base = nd->a;
+        else
+            continue;
+        crat r;
+        crat_init(&r);
+        int bad = 0;
+        if (build_rational(&r, e, base, &bad)) {
+            if (!add_roots(&c, &r.num))
+                complete = 0;
+        } else {
+            /* nested: eliminate the roots it contains (all of them, any index) */
+            mrat v;
+            mrat_init(&v, ctx);
+            fmpq_poly_t pn;
+            fmpq_poly_init(pn);
+            if (build_alg(&v, e, base, ctx) && eliminate(pn, v.num, e, e->nmv, ctx)) {
+                cpoly cp;
+                cpoly_init(&cp);
+                fmpq_poly_set(cp.re, pn);
+                if (!add_roots(&c, &cp))
+                    complete = 0;
+                cpoly_clear(&cp);
+            } else {
+                complete = 0;
+            }
+            fmpq_poly_clear(pn);
+            mrat_clear(&v, ctx);
+        }
+        crat_clear(&r);
+    }
+    fmpq_mpoly_ctx_clear(ctx);
+    free(c.rad);
+    *out = c.z;
+    *n = c.n;
+    if (!complete)
+        return sw_error_set(err, SW_EUNSUPPORTED,
+                            "some denominators are not algebraic in z: their zeros are unknown");
+    return SW_OK;
+}

@@ -28,6 +28,7 @@
  * the reported abserr must not be smaller than the actual error. */
 #include "test_util.h"
 
+#include <gsl/gsl_integration.h>
 #include <gsl/gsl_sf_dilog.h>
 #include <gsl/gsl_sf_ellint.h>
 #include <gsl/gsl_sf_gamma.h>
@@ -568,6 +569,58 @@ static void test_bank_two_ways(void **state)
 /* Random exponents checked against mpmath (an independent implementation)
  * through /usr/bin/python3.  A missing interpreter or mpmath is a failure:
  * this check must not be skipped silently. */
+static double qaws_g(double x, void *params)
+{
+    const struct cp { double complex p; int imag; } *c = params;
+    double complex v = 1.0 / (x - c->p);
+    return c->imag ? cimag(v) : creal(v);
+}
+
+/* Reference by GSL's QAWS (algebraic-logarithmic weight, QUADPACK):
+ * int_1^4 sqrt((x-1)(4-x)) g(x) dx with g = Re or Im of 1/(x - p). */
+static double qaws_part(double complex p, int imag)
+{
+    gsl_integration_workspace *w = gsl_integration_workspace_alloc(200);
+    gsl_integration_qaws_table *t = gsl_integration_qaws_table_alloc(0.5, 0.5, 0, 0);
+    struct cp { double complex p; int imag; } c = {p, imag};
+    gsl_function F;
+    F.function = qaws_g;
+    F.params = &c;
+    double res = NAN, err;
+    gsl_integration_qaws(&F, 1, 4, t, 0, 1e-13, 200, w, &res, &err);
+    gsl_integration_qaws_table_free(t);
+    gsl_integration_workspace_free(w);
+    return res;
+}
+
+/* Poles of a single-valued part near the cut must stay outside the loop of the
+ * contour method: sqrt((z-1)(z-4)) / (z - p) for a pole p off [1, 4], the
+ * upper bank equal to +-i int sqrt((x-1)(4-x)) / (x - p) dx (QAWS reference). */
+static void test_bank_pole_near_cut(void **state)
+{
+    (void)state;
+    static const double complex poles[] = {0.0, CMPLX(2.5, 0.3), CMPLX(3.1, -0.05), 5.0};
+    for (size_t k = 0; k < sizeof poles / sizeof poles[0]; k++) {
+        char f[96];
+        snprintf(f, sizeof f, "sqrt((z-1)*(z-4))/(z-(%.17g%+.17gi))", creal(poles[k]),
+                 cimag(poles[k]));
+        bres x = bank(f, 0, NULL, "1; 4", 1, 4, SW_BANK_UPPER);
+        if (x.st != SW_OK)
+            print_error("%s: %s\n", f, x.msg);
+        assert_int_equal(x.st, SW_OK);
+        double complex ref = CMPLX(qaws_part(poles[k], 0), qaws_part(poles[k], 1));
+        /* the bank value is +-i sqrt((x-1)(4-x)): compare moduli and the contour */
+        TU_CHECK_CLOSE(cabs(x.r.direct.value), cabs(ref), 1e-10, f,
+                       "QUADPACK QAWS (GSL) with weight (x-1)^(1/2) (4-x)^(1/2)");
+        assert_int_equal(x.r.contour_applies, 1);
+        if (!(x.r.agreement <= 1e-9)) {
+            print_error("%s: agreement %.3g (%s)\n", f, x.r.agreement, x.r.note);
+            fail();
+        }
+        sw_bank_integral_clear(&x.r);
+    }
+}
+
 static void test_mpmath_random(void **state)
 {
     (void)state;
@@ -653,6 +706,7 @@ int main(void)
         cmocka_unit_test(test_refusals),
         cmocka_unit_test(test_bank_path),
         cmocka_unit_test(test_bank_two_ways),
+        cmocka_unit_test(test_bank_pole_near_cut),
         cmocka_unit_test(test_mpmath_random),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

@@ -81,6 +81,14 @@ void sw_points_clear(sw_points *p);
 sw_status sw_points_compute(sw_points *out, const sw_func *f, const sw_points_opts *o,
                             sw_error *err);
 
+/* Expressions: points where a single-valued part may have a pole — the zeros
+ * of every denominator (division, negative integer power) on every branch of
+ * the roots it contains.  *OUT (malloc'd, caller frees) gets the points.
+ * SW_EUNSUPPORTED (with the points found so far) when some denominator is not
+ * algebraic in z.  Curves: none (their poles are listed by sw_points_compute). */
+sw_status sw_expr_pole_candidates(double complex **out, size_t *n, const sw_func *f,
+                                  sw_error *err);
+
 /* Curves: the permutation a path induced on the fiber.  START and END are
  * germs over the same point (END = START continued along a closed path);
  * PERM[i] (0-based) is the sheet of START on which the continuation of sheet

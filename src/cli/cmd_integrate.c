@@ -298,8 +298,8 @@ static int run_bank(cli *c)
         rc = cli_fail(c, &err);
     } else if (res.contour_applies && !(res.agreement <= 1e-8)) {
         sw_error_set(&err, SW_ETOLERANCE,
-                     "the direct and contour values differ by %.3g (relative): a pole inside the "
-                     "circle, or a loss of accuracy", res.agreement);
+                     "the direct and contour values differ by %.3g (relative): a singular point "
+                     "inside the loop, or a loss of accuracy", res.agreement);
         rc = cli_fail(c, &err);
     }
 done:
