@@ -199,8 +199,8 @@ typedef struct sw_bank_integral {
     double complex lambda;    /* jump of the integrand: other bank / this bank */
     double complex loop;      /* the counter-clockwise loop integral around [A, B] */
     double loop_abserr;
-    double complex centre;    /* the loop: the circle |z - centre| = radius */
-    double radius;
+    double complex centre;    /* the loop: an ellipse centred here (the middle of [A, B]) */
+    double radius;            /* ... with this semi-major axis (foci A and B) */
     double complex contour;   /* loop / (lambda - 1) (sign by the side, see below) */
     double contour_abserr;
     double agreement;         /* |direct - contour| / |direct| (NaN when not applied) */
@@ -222,10 +222,12 @@ void sw_bank_integral_clear(sw_bank_integral *r);
  *      here), the counter-clockwise loop on that circle equals
  *      (lambda - 1) times the bank integral (the bank on the left of A -> B;
  *      (1 - lambda) when on the right), so the bank integral is the loop
- *      divided by that factor.  The loop is computed numerically on the
- *      circle (trapezoidal rule); poles of R that PTS does not list and that
- *      lie inside the circle would add their residues: the agreement of (a)
- *      and (b) is the check.  lambda = 1 (no jump), a non-constant jump, a
+ *      divided by that factor.  The loop is computed numerically on an
+ *      ellipse with foci A and B that leaves out every point of PTS and every
+ *      zero of a denominator of the expression (sw_expr_pole_candidates), and
+ *      is cross-checked on a confocal ellipse half as thick (they must agree,
+ *      else the ellipses shrink); the agreement of (a) and (b) is the final
+ *      check.  lambda = 1 (no jump), a non-constant jump, a
  *      cut running on beyond [A, B] or a loop that does not return to its
  *      branch: the contour method does not apply, and NOTE says why.
  * [A, B] must not be vertical (the bank is chosen by +-i0).  Errors as for
