@@ -1019,41 +1019,31 @@ static sw_status curve_germ_at(sw_germ *g, const void *impl, double complex z, i
 }
 
 /* Certified steps are proven in pieces: a root may move only a fraction of
- * its distance to the others within one Krawczyk box (curve_cert.c), which
- * is shorter than what the double-precision test accepts.  The number of
- * pieces is chosen from the motion so that most pieces are proven at the
- * first try; a piece that is not is halved (up to CERT_SPLIT_DEPTH times).
+ * its distance to the others within one Krawczyk region (curve_cert.c),
+ * which is shorter than what the double-precision test accepts.  The first
+ * piece's length is chosen from the motion and from how fast P_w changes, so
+ * that most first tries are proven; after a refused piece the length is
+ * multiplied by CERT_SHRINK for the rest of the step (so one refusal sets the
+ * length instead of every piece being refused and split again; growing it
+ * again after proven pieces was measured to cost more refusals than it
+ * saves), down to 2^-CERT_SPLIT_DEPTH of the first length (so the loop ends:
+ * at most CERT_SPLIT_DEPTH refusals, every proof advances by a piece).
  * Intermediate fibers come from double-precision steps; every piece is
  * proven between the fibers at its ends, so the chain proves the whole step
  * from IN's fiber to W1. */
 #define CERT_MOTION 0.125
-#define CERT_PW_CHANGE 0.25
+#define CERT_PW_CHANGE 0.4
 #define CERT_MAX_PIECES 256
 #define CERT_SPLIT_DEPTH 3
-
-static sw_step_result certify_piece(const sw_curve *cv, double complex za,
-                                    const double complex *wa, double complex zb,
-                                    const double complex *wb, double sep, int depth)
-{
-    double complex wm[SW_CURVE_MAX_DEGREE], zm = 0.5 * (za + zb);
-    sw_step_result r = sw_curve_certify_step(cv, za, wa, zb, wb);
-    if (r == SW_STEP_OK || depth == 0)
-        return r == SW_STEP_TOO_FAR ? SW_STEP_UNPROVEN : r;
-    if (sw_curve_step(wm, cv, za, wa, zm, sep) != SW_STEP_OK)
-        return SW_STEP_UNPROVEN;
-    r = certify_piece(cv, za, wa, zm, wm, sep, depth - 1);
-    if (r != SW_STEP_OK)
-        return r;
-    return certify_piece(cv, zm, wm, zb, wb, sep, depth - 1);
-}
+#define CERT_SHRINK 0.5
 
 static sw_step_result certify_pieces(const sw_curve *cv, double complex z0,
                                      const double complex *w0, double complex z1,
                                      const double complex *w1, double sep)
 {
     size_t n = (size_t)cv->n, i;
-    double ratio = 0;
-    long k, q;
+    double ratio = 0, t = 0, h, hmin;
+    long k;
     double complex cur[SW_CURVE_MAX_DEGREE], nxt[SW_CURVE_MAX_DEGREE], zc = z0;
     for (i = 0; i < n && n > 1; i++) {
         double s = fmin(sw_fiber_sep(w0, n, i), sw_fiber_sep(w1, n, i));
@@ -1081,19 +1071,27 @@ static sw_step_result certify_pieces(const sw_curve *cv, double complex z0,
     if (k < 1) k = 1;
     if (k > CERT_MAX_PIECES)
         return SW_STEP_TOO_FAR;
+    h = 1.0 / (double)k;
+    hmin = ldexp(h, -CERT_SPLIT_DEPTH) * (1 - 1e-9);
     memcpy(cur, w0, n * sizeof *cur);
-    for (q = 1; q <= k; q++) {
-        double complex zq = q == k ? z1 : z0 + (z1 - z0) * ((double)q / (double)k);
-        sw_step_result r;
-        if (q == k)
+    while (t < 1) {
+        /* a remainder shorter than a quarter piece joins this piece */
+        double tn = t + h >= 1 - 0.25 * h ? 1 : t + h;
+        double complex zq = tn == 1 ? z1 : z0 + (z1 - z0) * tn;
+        sw_step_result r = SW_STEP_UNPROVEN;
+        if (tn == 1)
             memcpy(nxt, w1, n * sizeof *nxt);
-        else if (sw_curve_step(nxt, cv, zc, cur, zq, sep) != SW_STEP_OK)
-            return SW_STEP_TOO_FAR;
-        r = certify_piece(cv, zc, cur, zq, nxt, sep, CERT_SPLIT_DEPTH);
-        if (r != SW_STEP_OK)
-            return r;
-        memcpy(cur, nxt, n * sizeof *cur);
-        zc = zq;
+        if (tn == 1 || sw_curve_step(nxt, cv, zc, cur, zq, sep) == SW_STEP_OK)
+            r = sw_curve_certify_step(cv, zc, cur, zq, nxt);
+        if (r == SW_STEP_OK) {
+            memcpy(cur, nxt, n * sizeof *cur);
+            zc = zq;
+            t = tn;
+        } else {
+            h *= CERT_SHRINK;
+            if (h < hmin)
+                return SW_STEP_UNPROVEN;
+        }
     }
     return SW_STEP_OK;
 }
@@ -1180,6 +1178,7 @@ void sw_curve_free(sw_curve *cv)
         return;
     free(cv->c);
     free(cv->cabs);
+    free(cv->cdev);
     if (cv->ball)
         _acb_vec_clear(cv->ball, (cv->n + 1) * (cv->m + 1));
     fmpq_mpoly_clear(cv->re, cv->ctx);
@@ -1312,8 +1311,9 @@ sw_status sw_curve_build(sw_curve **out, const char *text, const sw_params *para
     len = (cv->n + 1) * (cv->m + 1);
     cv->c = calloc((size_t)len, sizeof *cv->c);
     cv->cabs = calloc((size_t)len, sizeof *cv->cabs);
+    cv->cdev = calloc((size_t)len, sizeof *cv->cdev);
     cv->ball = _acb_vec_init(len);
-    if (!cv->c || !cv->cabs) { st = sw_error_set(err, SW_ENOMEM, "out of memory"); goto cleanup; }
+    if (!cv->c || !cv->cabs || !cv->cdev) { st = sw_error_set(err, SW_ENOMEM, "out of memory"); goto cleanup; }
     {
         fmpq_t q;
         slong ex[2];
@@ -1352,6 +1352,30 @@ sw_status sw_curve_build(sw_curve **out, const char *text, const sw_params *para
         /* one-limb midpoints: the certified steps work at 64 bits, and a
          * rounded ball still encloses the exact coefficient */
         acb_set_round(cv->ball + i, cv->ball + i, CURVE_BALL_PREC);
+    }
+    /* distance from each double coefficient to its ball (which encloses the
+     * exact coefficient), rounded up: the double-precision certified test
+     * (curve_cert.c) works with the doubles and adds this deviation */
+    {
+        arb_t d;
+        arf_t b;
+        arb_init(d);
+        arf_init(b);
+        for (i = 0; i < len; i++) {
+            double dev = 0;
+            for (int part = 0; part < 2; part++) {
+                const arb_struct *x = part ? acb_imagref(cv->ball + i) : acb_realref(cv->ball + i);
+                arb_set_d(d, part ? cimag(cv->c[i]) : creal(cv->c[i]));
+                arb_sub(d, x, d, 2 * CURVE_BALL_PREC);
+                arb_get_abs_ubound_arf(b, d, 53);
+                dev += arf_get_d(b, ARF_RND_UP);
+            }
+            /* the sum of the two parts bounds the modulus; one more ulp
+             * covers the rounding of this addition */
+            cv->cdev[i] = dev > 0 ? nextafter(dev, INFINITY) : 0;
+        }
+        arb_clear(d);
+        arf_clear(b);
     }
     if (cv->complex_coeffs) {
         /* numerical square-free test at two fixed generic points */

@@ -1,48 +1,384 @@
-/* Certified continuation steps for curves: the Krawczyk operator in Arb balls.
+/* Certified continuation steps for curves.
  *
- * Krawczyk's test (R. Krawczyk, Computing 4 (1969) 187-201; R. E. Moore,
- * R. B. Kearfott, M. J. Cloud, Introduction to Interval Analysis, SIAM 2009,
- * section 8.2): for a box W with centre m, any Y, and Z a box of z values,
- *     K(Z, W) = m - Y P(Z, m) + (1 - Y P_w(Z, W)) (W - m).
- * If K(Z, W) lies in the interior of W then for every z in Z the polynomial
- * P(z, .) has exactly one root in W.  (Complex arithmetic on rectangles: the
- * mean-value inclusion P(z, x) - P(z, m) in P_w(z, W) (x - m) holds because
- * Arb's complex balls are convex.)
- *
- * A step from z0 to z1 is proven when, with Z a box containing the segment
- * [z0, z1] and one box W_i per sheet,
- *   (1) K(Z, W_i) lies inside W_i for every sheet i, and
+ * A step from z0 to z1 with double-precision fibers w0[], w1[] at its ends is
+ * proven when there are closed regions W_i, one per sheet, such that
+ *   (1) for every z on the segment [z0, z1], P(z, .) has exactly one root in
+ *       W_i, and
  *   (2) W_i lies inside the disk D(w0_i, s0_i / 2) and inside D(w1_i, s1_i / 2),
  *       where s_i is the distance from the (double) value w_i to the nearest
  *       other value of the same fiber.
  * (2) makes the W_i pairwise disjoint, so the n roots are n distinct
  * continuous functions on the segment, root i staying in W_i.  It also links
- * consecutive steps without carrying boxes in the germ: at the shared point
- * z1 both steps' boxes for sheet i lie in the disk D(w1_i, s1_i / 2), and
- * these disks are pairwise disjoint, so the root proven in the one box is the
- * root proven in the next.  The germ's double values are thus labels of
- * proven root paths; the chain starts at the fiber of germ_at. */
+ * consecutive steps without carrying regions in the germ: at the shared point
+ * z1 the n regions of a step hold n distinct roots, hence every root of
+ * P(z1, .); both steps' regions for sheet i lie in the disk D(w1_i, s1_i / 2),
+ * these disks are pairwise disjoint, so the root proven in the one region is
+ * the root proven in the next.  The germ's double values are thus labels of
+ * proven root paths; the chain starts at the fiber of germ_at.
+ *
+ * (1) is proven by Krawczyk's test (R. Krawczyk, Computing 4 (1969) 187-201;
+ * R. E. Moore, R. B. Kearfott, M. J. Cloud, Introduction to Interval Analysis,
+ * SIAM 2009, section 8.2) in one of two forms:
+ *
+ *   - on disks, in double precision with rigorous rounding-error bounds
+ *     (certify_disks, tried first: it is ~100 times cheaper);
+ *   - on rectangles, in Arb ball arithmetic (certify_boxes, the fallback when
+ *     the first form failed only because of its rounding-error terms).
+ *
+ * Both are proofs; a step is reported proven when either succeeds. */
+#include <float.h>
 #include <math.h>
 #include <string.h>
 
 #include "curve_internal.h"
 
+/* ------------------------------------------------------------------------ */
+/* Krawczyk's test on disks, in double precision.
+ *
+ * The argument.  Let Z be the disk |z - zc| <= delta (it contains the
+ * segment), W = D(c, rho), Y != 0 any complex number, and for z in Z let
+ * N(w) = w - Y P(z, w).  For w = c + v in W,
+ *     N(w) - c = -Y P(z, c) + int_0^1 (1 - Y P_w(z, c + s v)) ds  v,
+ * so with   A >= sup_Z |Y P(z, c)|   and   B >= sup_{Z x W} |1 - Y P_w(z, w)|,
+ * A + B rho < rho implies that N maps W into its interior and, since then
+ * B < 1, is a contraction there (|N'| <= B on the convex set W).  By Banach's
+ * fixed-point theorem N has exactly one fixed point in W, i.e. P(z, .) has
+ * exactly one root in W, and it is simple (|1 - Y P_w| < 1 there).  This is
+ * Krawczyk's operator K(Z, W) = c - Y P(Z, c) + (1 - Y P_w(Z, W))(W - c) with
+ * the condition K inside int W, written with disk bounds instead of interval
+ * hulls (the disk form of the contraction argument, e.g. S. M. Rump,
+ * "Verification methods", Acta Numerica 19 (2010) 287-449, section 13).
+ *
+ * The bounds.  Expand the polynomial at the centre of the step:
+ *     P(zc + t, c + v) = sum_{j,k} E_jk t^k v^j.
+ * Then for |t| <= delta, |v| <= rho
+ *     |Y P(zc + t, c)|       <= |Y| sum_k |E_0k| delta^k,
+ *     |1 - Y P_w(zc+t, c+v)| <= |1 - Y E_10|
+ *                               + |Y| sum_{j>=1, (j,k) != (1,0)} j |E_jk| delta^k rho^(j-1).
+ * These majorant bounds are centred to every order: the large terms of P
+ * that cancel near a root never enter, which is what makes long steps and
+ * clustered or large roots provable (a ball evaluation over the boxes adds
+ * up the variations of the individual terms instead).  Y = 1 / E_10.
+ *
+ * The E_jk are computed in double precision by two Taylor shifts (repeated
+ * synthetic division): first in z, once per step for all sheets, then in w
+ * at each sheet's centre c.  Rounding errors are bounded a priori
+ * (N. J. Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+ * SIAM 2002, Lemmas 3.1 and 3.3): the shifts are sums of products in which
+ * every term passes through at most L = 3 (m + n) rounded operations (a
+ * coefficient moved d places takes d products and d sums, and every pass of
+ * synthetic division rounds the sum it sits in once more), each with
+ * relative error at most u for a complex sum and 2 sqrt(2) u (1 + u) < 3u for
+ * a complex product of doubles (Higham, Lemma 3.5; with or without a fused
+ * multiply-add), so each computed E_jk differs from the exact shift of the
+ * double coefficients by at most
+ *     gamma Et_jk,   gamma = (1 + 3u)^L - 1 <= 3.01 u L,
+ * where Et_jk are the same shifts applied to |c_jk|, |zc| and |c| exactly.
+ * The double coefficients themselves differ from the exact ones by at most
+ * cdev_jk (curve.c), whose shifts are bounded the same way.  Weighted as in
+ * the bounds above, these errors sum to the values of one polynomial with
+ * non-negative coefficients,
+ *     R(x, y) = sum (gamma |c_jk| + cdev_jk) x^k y^j,
+ * namely R(|zc| + delta, |c|) in A and R_y(|zc| + delta, |c| + rho) in B.
+ * Underflow in the shifts adds at most 2^-1074 per component and operation,
+ * carried through the rest of the (linear) shifts with a growth of at most
+ * (1 + |zc|)^m (1 + |c|)^n: an absolute term bounds it.
+ *
+ * The remaining arithmetic is on non-negative numbers (sums and products
+ * only, depth < 4 (m + n) + 20 <= 340 operations), where a computed value is
+ * at least (1 - u)^340 > 1 - 2^-40 times the exact one; the factor SLACK
+ * covers this.  Underflow there is excluded by flooring every input at
+ * FLOOR and both radii at RADIUS_MIN (replacing a bound by a larger one keeps
+ * it a bound; a larger Z only asks more): all partial results then stay above
+ * 1e-300, in the normal range.  The only subtraction, 1 - Y E_10, gets its
+ * rounding error added explicitly. */
+
+#define U_ROUND (DBL_EPSILON / 2)
+#define SLACK (1 + 0x1p-40)
+#define FLOOR 1e-150
+#define RADIUS_MIN 1e-100
+/* Safety factor for the geometric condition (2), computed in double: double
+ * rounding is ~1e-16 relative, far inside this margin. */
+#define CERT_GEOM_MARGIN 0.999
+/* Golden section search for the disk radius (each probe costs O(n) once the
+ * expansion is known; 40 probes narrow [0, rmax] by 0.618^40 ~ 4e-9). */
+#define RADIUS_SEARCH 40
+#define GOLDEN 0.6180339887498949
+
+/* An upper bound for |x + iy| up to the factor SLACK (for tiny values, where
+ * the squares could underflow, the 1-norm). */
+static double abs_ub(double x, double y)
+{
+    double a = fabs(x) + fabs(y);
+    if (a < 1e-140 || !isfinite(a))
+        return a;
+    return sqrt(x * x + y * y);
+}
+
+/* Taylor shift in the row index, for every column at once: RE + i IM holds
+ * deg+1 rows of LEN entries; for each column k the entries p_j (row j) are
+ * the coefficients of p(x) = sum_j p_j x^j, replaced by those of p(x + s)
+ * (repeated synthetic division, deg (deg + 1) / 2 multiply-adds per column;
+ * the inner loop runs along a row, contiguous). */
+static void shift_columns(double *re, double *im, long deg, long len, double sr, double si)
+{
+    for (long i = 0; i < deg; i++)
+        for (long j = deg - 1; j >= i; j--) {
+            double *ar = re + j * len, *ai = im + j * len;
+            const double *br = re + (j + 1) * len, *bi = im + (j + 1) * len;
+            for (long k = 0; k < len; k++) {
+                double pr = sr * br[k] - si * bi[k];
+                double pi = sr * bi[k] + si * br[k];
+                ar[k] += pr;
+                ai[k] += pi;
+            }
+        }
+}
+
+/* sep[i] = distance from w[i] to the nearest other entry, from squared
+ * distances (one square root per entry; relative error a few u, far inside
+ * CERT_GEOM_MARGIN; an underflowing square only makes a distance smaller,
+ * which makes condition (2) stricter). */
+static void separations(double *sep, const double complex *w, long n)
+{
+    for (long i = 0; i < n; i++) {
+        double d = INFINITY;
+        for (long j = 0; j < n; j++) {
+            if (j != i) {
+                double x = creal(w[i]) - creal(w[j]), y = cimag(w[i]) - cimag(w[j]);
+                double q = x * x + y * y;
+                if (q < d) d = q;
+            }
+        }
+        /* an overflowing square: the distance exceeds sqrt(DBL_MAX) > 1e150 */
+        sep[i] = isfinite(d) ? sqrt(d) : 1e150;
+    }
+}
+
+/* B(rho) >= sup |1 - Y P_w| over Z x D(c, rho) (see above) and, in B0, the
+ * same without the rounding-error terms; returns 1 when the test
+ * A + B rho < rho holds (with the rounding of that last sum covered). */
+static int radius_test(double *Bout, double *B0out, double rho, double A, double c10, double ay,
+                       double uf, double ac, const double *S, const double *Rg, long n)
+{
+    double bs = 0, rs = 0, y = ac + rho, B;
+    long j;
+    *Bout = INFINITY;
+    *B0out = INFINITY;
+    if (!(rho >= RADIUS_MIN))
+        return 0;
+    /* sum_{j>=1} j S[j] rho^(j-1) and R_y(X, |c| + rho) */
+    for (j = n; j >= 1; j--) {
+        bs = bs * rho + (double)j * S[j];
+        rs = rs * y + (double)j * Rg[j];
+    }
+    *B0out = c10 + ay * bs;
+    B = (*B0out + ay * (rs + uf)) * SLACK;
+    *Bout = B;
+    return isfinite(B) && (A + B * rho) * (1 + 4 * U_ROUND) < rho;
+}
+
+/* rho - A - B(rho) rho (a search criterion only: the proof is radius_test). */
+static double radius_margin(double rho, double A, double c10, double ay, double uf, double ac,
+                            const double *S, const double *Rg, long n)
+{
+    double B, B0;
+    if (radius_test(&B, &B0, rho, A, c10, ay, uf, ac, S, Rg, n))
+        return 1;
+    return isfinite(B) ? rho - A - B * rho : -INFINITY;
+}
+
+static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
+                                    const double complex *w0, double complex z1,
+                                    const double complex *w1, int *retry)
+{
+    enum { D1 = SW_CURVE_MAX_DEGREE + 1 };
+    long n = cv->n, m = cv->m, i, j, k;
+    long L = 3 * (m + n);
+    double gamma = 3.01 * U_ROUND * (double)L;
+    /* z-shifted coefficients, stored transposed: zr[k * (n+1) + j] is the
+     * coefficient of t^k w^j, so the z shift runs along rows */
+    double zr[D1 * D1], zi[D1 * D1], er[D1 * D1], ei[D1 * D1];
+    double rmax[SW_CURVE_MAX_DEGREE], Rg[D1], s0v[SW_CURVE_MAX_DEGREE], s1v[SW_CURVE_MAX_DEGREE];
+    double complex zc = 0.5 * (z0 + z1);
+    double delta, X, azc;
+    long nops = (n + 1) * m * m + (m + 1) * n * n + 1;
+
+    *retry = 0;
+    /* geometry first (cheap): disk radii allowed by condition (2) */
+    if (n > 1) {
+        separations(s0v, w0, n);
+        separations(s1v, w1, n);
+    }
+    for (i = 0; i < n; i++) {
+        double complex c = 0.5 * (w0[i] + w1[i]);
+        double a = creal(c - w0[i]), b = cimag(c - w0[i]);
+        double half = abs_ub(a, b);
+        a = creal(c - w1[i]);
+        b = cimag(c - w1[i]);
+        half = fmax(half, abs_ub(a, b)) * (1 + 8 * U_ROUND);
+        if (n == 1)
+            rmax[i] = 4 * half + 1e-6 * (cabs(w0[i]) + 1);
+        else
+            rmax[i] = 0.5 * fmin(s0v[i], s1v[i]) * CERT_GEOM_MARGIN - half;
+        if (!(rmax[i] > half))
+            return SW_STEP_TOO_FAR;
+    }
+    /* the disk Z: any centre, a radius reaching both ends (a difference of
+     * doubles is rounded once per component) */
+    delta = fmax(abs_ub(creal(z0 - zc), cimag(z0 - zc)), abs_ub(creal(z1 - zc), cimag(z1 - zc)));
+    delta = fmax(delta * (1 + 8 * U_ROUND), RADIUS_MIN);
+    azc = abs_ub(creal(zc), cimag(zc)) * (1 + 4 * U_ROUND);
+    X = azc + delta;
+    /* Rg[j] = sum_k (gamma |c_jk| + cdev_jk) X^k: R(X, y) = sum_j Rg[j] y^j */
+    for (j = 0; j <= n; j++) {
+        const double *ca = cv->cabs + j * (m + 1), *cd = cv->cdev + j * (m + 1);
+        double s = 0;
+        for (k = m; k >= 0; k--)
+            s = s * X + fmax(gamma * ca[k] + cd[k], FLOOR);
+        Rg[j] = s;
+    }
+    /* shift in z: for each j, a_j(zc + t) */
+    for (j = 0; j <= n; j++)
+        for (k = 0; k <= m; k++) {
+            zr[k * (n + 1) + j] = creal(cv->c[j * (m + 1) + k]);
+            zi[k * (n + 1) + j] = cimag(cv->c[j * (m + 1) + k]);
+        }
+    shift_columns(zr, zi, m, n + 1, creal(zc), cimag(zc));
+
+    for (i = 0; i < n; i++) {
+        double complex c = 0.5 * (w0[i] + w1[i]);
+        double ac = abs_ub(creal(c), cimag(c)) * (1 + 4 * U_ROUND);
+        double S0 = 0, S[D1], ay, A, Aerr, uf, c10, yr, yi, er10, ei10, den;
+        double rho;
+        int t, proven = 0, clean = 0;
+        /* transpose into er[j * (m+1) + k] (coefficient of t^k w^j) and
+         * shift in w at c */
+        for (k = 0; k <= m; k++)
+            for (j = 0; j <= n; j++) {
+                er[j * (m + 1) + k] = zr[k * (n + 1) + j];
+                ei[j * (m + 1) + k] = zi[k * (n + 1) + j];
+            }
+        shift_columns(er, ei, n, m + 1, creal(c), cimag(c));
+        /* Y = 1 / E_10 (any non-zero Y is valid; this one contracts) */
+        er10 = er[1 * (m + 1) + 0];
+        ei10 = ei[1 * (m + 1) + 0];
+        den = er10 * er10 + ei10 * ei10;
+        if (!(den > 0) || !isfinite(den)) {
+            *retry = 1;
+            return SW_STEP_UNPROVEN;
+        }
+        yr = er10 / den;
+        yi = -ei10 / den;
+        ay = fmax(abs_ub(yr, yi), FLOOR);
+        /* |1 - Y E_10|: the product's rounding error is below 3u |Y| |E_10|,
+         * the subtraction's below u (1 + |Y E_10|) (1 + u) */
+        {
+            double pr = yr * er10 - yi * ei10, pi = yr * ei10 + yi * er10;
+            double ype = ay * abs_ub(er10, ei10);
+            c10 = (abs_ub(1 - pr, pi) + 3 * U_ROUND * ype + 2 * U_ROUND * (1 + ype)) * SLACK;
+        }
+        /* S0 = sum_k |E_0k| delta^k;  S[j] = sum_k |E_jk| delta^k for
+         * j >= 1, without E_10 */
+        for (j = 0; j <= n; j++) {
+            const double *rr = er + j * (m + 1), *ii = ei + j * (m + 1);
+            double s = 0;
+            for (k = m; k >= (j == 1 ? 1 : 0); k--)
+                s = s * delta + fmax(abs_ub(rr[k], ii[k]), FLOOR);
+            if (j == 1)
+                s *= delta;
+            if (j == 0) S0 = s; else S[j] = s;
+        }
+        /* underflow in the shifts: at most 2^-1074 per component and
+         * operation, grown by at most (1 + |zc|)^m (1 + |c|)^n, weighted by
+         * at most (n+1)^2 (m+1) n max(1, delta)^m max(1, rho)^n (bounded
+         * below with rho <= rmax) */
+        uf = (double)nops * (double)((n + 1) * (n + 1) * (m + 1) * n) *
+             pow((1 + azc) * (1 + delta), (double)m) *
+             pow((1 + ac) * (1 + fmax(rmax[i], RADIUS_MIN)), (double)n) *
+             1e-300; /* > 2^-1072, and keeps the product normal */
+        /* A >= sup |Y P(z, c)| */
+        {
+            double r0 = 0;
+            for (j = n; j >= 0; j--)
+                r0 = r0 * ac + Rg[j];
+            Aerr = ay * (r0 + uf);
+            A = (ay * S0 + Aerr) * SLACK;
+        }
+        if (!isfinite(A)) {
+            *retry = 1;
+            return SW_STEP_UNPROVEN;
+        }
+        /* radius: the test asks h(rho) = rho (1 - B(rho)) > A, where B is a
+         * polynomial in rho with non-negative coefficients, so h is concave
+         * on [0, rmax].  Try a radius a little above the smallest feasible
+         * one first (usually enough); else take the maximum of h by golden
+         * section search (its test is as valid as any other radius's). */
+        {
+            double b0 = c10 + ay * S[1];
+            double lo = 0, hi = rmax[i], x1, x2, h1, h2, B, B0;
+            if (!(b0 < 1)) {
+                *retry = 0;
+                return SW_STEP_UNPROVEN;
+            }
+            rho = fmin(rmax[i], fmax(1.5 * A / (1 - b0), RADIUS_MIN));
+            proven = radius_test(&B, &B0, rho, A, c10, ay, uf, ac, S, Rg, n);
+            if (!proven) {
+                if (ay * S0 + B0 * rho < rho)
+                    clean = 1;
+                x1 = hi - GOLDEN * (hi - lo);
+                x2 = lo + GOLDEN * (hi - lo);
+                h1 = radius_margin(x1, A, c10, ay, uf, ac, S, Rg, n);
+                h2 = radius_margin(x2, A, c10, ay, uf, ac, S, Rg, n);
+                for (t = 0; t < RADIUS_SEARCH && !(h1 > 0 || h2 > 0); t++) {
+                    if (h1 < h2) {
+                        lo = x1; x1 = x2; h1 = h2;
+                        x2 = lo + GOLDEN * (hi - lo);
+                        h2 = radius_margin(x2, A, c10, ay, uf, ac, S, Rg, n);
+                    } else {
+                        hi = x2; x2 = x1; h2 = h1;
+                        x1 = hi - GOLDEN * (hi - lo);
+                        h1 = radius_margin(x1, A, c10, ay, uf, ac, S, Rg, n);
+                    }
+                }
+                rho = h1 > h2 ? x1 : x2;
+                proven = radius_test(&B, &B0, rho, A, c10, ay, uf, ac, S, Rg, n);
+                if (!proven && ay * S0 + B0 * rho < rho)
+                    clean = 1;
+            }
+        }
+        if (!proven) {
+            *retry = clean;
+            return SW_STEP_UNPROVEN;
+        }
+    }
+    return SW_STEP_OK;
+}
+
+/* ------------------------------------------------------------------------ */
+/* Krawczyk's test on rectangles in Arb ball arithmetic.
+ *
+ * For a box W with centre m, any Y, and Z a box of z values,
+ *     K(Z, W) = m - Y P(Z, m) + (1 - Y P_w(Z, W)) (W - m).
+ * If K(Z, W) lies in the interior of W then for every z in Z the polynomial
+ * P(z, .) has exactly one root in W.  (Complex arithmetic on rectangles: the
+ * mean-value inclusion P(z, x) - P(z, m) in P_w(z, W) (x - m) holds because
+ * Arb's complex balls are convex.)  W_i is a square box, inside the disks of
+ * condition (2). */
+
 /* Working precision of the ball arithmetic (the coefficient balls are exact
  * or 128-bit enclosures; 64 bits make rounding negligible next to the box
  * sizes used). */
 #define CERT_PREC 64
-/* Safety factor for the geometric condition (2), computed in double: double
- * rounding is ~1e-16 relative, far inside this margin. */
-#define CERT_GEOM_MARGIN 0.999
 
 static void acb_set_dc(acb_t x, double complex v)
 {
     acb_set_d_d(x, creal(v), cimag(v));
 }
 
-sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
-                                     const double complex *w0, double complex z1,
-                                     const double complex *w1)
+static sw_step_result certify_boxes(const sw_curve *cv, double complex z0,
+                                    const double complex *w0, double complex z1,
+                                    const double complex *w1)
 {
     long n = cv->n, m = cv->m, i, j, k;
     double rho[SW_CURVE_MAX_DEGREE], rmaxv[SW_CURVE_MAX_DEGREE];
@@ -56,7 +392,9 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
     for (i = 0; i < n; i++) {
         double s0 = n > 1 ? sw_fiber_sep(w0, (size_t)n, (size_t)i) : INFINITY;
         double s1 = n > 1 ? sw_fiber_sep(w1, (size_t)n, (size_t)i) : INFINITY;
-        double half = 0.5 * cabs(w1[i] - w0[i]);
+        double complex mid = 0.5 * (w0[i] + w1[i]);
+        /* distances from the box centre (the rounded midpoint) to the ends */
+        double half = fmax(cabs(mid - w0[i]), cabs(mid - w1[i])) * (1 + 4 * DBL_EPSILON);
         /* farthest point of the square box (half-width rho) from w0 or w1 is
          * at most half + sqrt(2) rho from either */
         double rmax = (0.5 * fmin(s0, s1) * CERT_GEOM_MARGIN - half) / 1.4142135623730951;
@@ -251,4 +589,15 @@ sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
     acb_clear(Zc); acb_clear(dZ); acb_clear(t); acb_clear(M); acb_clear(P); acb_clear(Pw);
     acb_clear(Q); acb_clear(Y); acb_clear(K); acb_clear(D);
     return res;
+}
+
+sw_step_result sw_curve_certify_step(const sw_curve *cv, double complex z0,
+                                     const double complex *w0, double complex z1,
+                                     const double complex *w1)
+{
+    int retry = 0;
+    sw_step_result r = certify_disks(cv, z0, w0, z1, w1, &retry);
+    if (r == SW_STEP_OK || r == SW_STEP_TOO_FAR || !retry)
+        return r;
+    return certify_boxes(cv, z0, w0, z1, w1);
 }

@@ -33,6 +33,9 @@ typedef struct sw_curve {
     long m;                 /* degree in z */
     double complex *c;      /* c[j*(m+1)+k]: coefficient of z^k w^j (double) */
     double *cabs;           /* |c[...]|, for rounding-error scales */
+    double *cdev;           /* upper bounds of |exact coefficient - c[...]|
+                               (0 when the double is exact), for the
+                               double-precision certified test */
     acb_struct *ball;       /* the same coefficients as Arb balls (exact or
                                enclosing the exact rational), CURVE_BALL_PREC */
     int rational;           /* 1: every coefficient was written as an exact

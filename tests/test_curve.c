@@ -3,6 +3,9 @@
  *
  * Sources are named beside each check.  Reference library: GSL's
  * gsl_poly_complex_solve (companion-matrix QR) for fibers. */
+/* curve_internal.h first: FLINT's headers must precede <complex.h> */
+#include "curve_internal.h"
+
 #include "test_util.h"
 
 #include <gsl/gsl_poly.h>
@@ -484,6 +487,63 @@ static void test_certified_agrees(void **state)
     }
 }
 
+/* A certified step must be refused when two roots meet inside it, even when
+ * the fibers at both ends are far apart and each root returns to where it
+ * started.  w^2 = z^4 is (w - z^2)(w + z^2): the roots +-z^2 meet at z = 0
+ * (elementary algebra) and have the same values +-r^4 at z = -r and z = r, so
+ * the step from -r to r passes the end-point geometry; only the proof can
+ * refuse it, in either labelling.  Controls that must be proven, so the
+ * refusal is not vacuous: the same steps for w^2 = z^4 + 1/100, whose roots
+ * +-sqrt(z^4 + 1/100) stay at least 2/10 apart on the real segment, and a
+ * step of w^2 = z^4 away from 0. */
+static void test_certify_refuses_collision(void **state)
+{
+    (void)state;
+    static const double radii[] = {0.5, 0.2, 0.05, 1e-3};
+    sw_func *f = curve("w^2 - z^4", NULL), *g = curve("w^2 - z^4 - 1/100", NULL);
+    const sw_curve *cf = sw_curve_of(f), *cg = sw_curve_of(g);
+    double complex w0[2], w1[2], sw[2];
+    sw_error err;
+    for (size_t k = 0; k < sizeof radii / sizeof radii[0]; k++) {
+        double r = radii[k];
+        /* the colliding pair: the same sorted values at both ends */
+        assert_int_equal(sw_curve_fiber(w0, cf, -r, &err), SW_OK);
+        assert_int_equal(sw_curve_fiber(w1, cf, r, &err), SW_OK);
+        sw_curve_sort_fiber(w0, 2);
+        sw_curve_sort_fiber(w1, 2);
+        assert_true(cabs(w0[0] - w1[0]) <= 1e-12 * r * r && cabs(w0[1] - w1[1]) <= 1e-12 * r * r);
+        assert_int_not_equal(sw_curve_certify_step(cf, -r, w0, r, w1), SW_STEP_OK);
+        sw[0] = w1[1];
+        sw[1] = w1[0];
+        assert_int_not_equal(sw_curve_certify_step(cf, -r, w0, r, sw), SW_STEP_OK);
+        /* the pair that does not meet: proven, in pieces when long */
+        assert_int_equal(sw_curve_fiber(w0, cg, -r, &err), SW_OK);
+        sw_curve_sort_fiber(w0, 2);
+        {
+            double complex cur[2] = {w0[0], w0[1]}, za = -r;
+            int pieces = r > 0.1 ? 16 : 1;
+            for (int q = 1; q <= pieces; q++) {
+                double complex zb = -r + 2 * r * q / pieces;
+                assert_int_equal(sw_curve_step(w1, cg, za, cur, zb, 0.25), SW_STEP_OK);
+                if (sw_curve_certify_step(cg, za, cur, zb, w1) != SW_STEP_OK) {
+                    print_error("w^2 = z^4 + 1/100: step %g -> %g not proven\n", creal(za), creal(zb));
+                    fail();
+                }
+                cur[0] = w1[0];
+                cur[1] = w1[1];
+                za = zb;
+            }
+        }
+    }
+    /* w^2 = z^4 away from the meeting point */
+    assert_int_equal(sw_curve_fiber(w0, cf, 0.4, &err), SW_OK);
+    sw_curve_sort_fiber(w0, 2);
+    assert_int_equal(sw_curve_step(w1, cf, 0.4, w0, 0.45, 0.25), SW_STEP_OK);
+    assert_int_equal(sw_curve_certify_step(cf, 0.4, w0, 0.45, w1), SW_STEP_OK);
+    sw_func_free(f);
+    sw_func_free(g);
+}
+
 /* Relabelling the base point gives conjugate permutations: a circle round a
  * branch point started at a random point of the circle (its own base, its
  * own labels) has the cycle type of the local permutation (conjugacy
@@ -563,6 +623,7 @@ int main(void)
         cmocka_unit_test(test_poles),
         cmocka_unit_test(test_product_relation_random),
         cmocka_unit_test(test_certified_agrees),
+        cmocka_unit_test(test_certify_refuses_collision),
         cmocka_unit_test(test_conjugate_base),
     };
     return cmocka_run_group_tests_name("curve", tests, setup, NULL);
