@@ -753,7 +753,31 @@ static int add_nested_roots(cand_list *c, const sw_expr *e, size_t m)
 }
 
 /* Is some operand zero or infinite at C on a branch of the inner roots other
- * than the principal one (tried over the rational exponents' branches)? */
+ * than the principal one, while it is not on the principal branch?  (Tried
+ * over the branches of the rational exponents; an operand that vanishes on
+ * every branch, like a rational one, does not count.) */
+static int singular_nodes(char *sing, const sw_expr *e, double complex c, double r,
+                          const long *shift, double complex *st, double complex *st2,
+                          double complex *vals)
+{
+    double complex v;
+    memset(sing, 0, e->nmv);
+    int r1 = sw_expr_shifted_state(&v, st, e, c, 0, shift, vals);
+    int r2 = sw_expr_shifted_state(&v, st2, e, c + r, 0, shift, vals);
+    if (r2 != -1)
+        return 0; /* the comparison point itself is singular: no verdict */
+    if (r1 <= -2) {
+        sing[-2 - r1] = 1; /* evaluation stops at the first singular node */
+        return 1;
+    }
+    for (size_t k = 0; k < e->nmv; k++) {
+        double a = cabs(st[2 * k]), b = cabs(st2[2 * k]);
+        if (a < 1e-7 * b || b < 1e-7 * a)
+            sing[k] = 1;
+    }
+    return 1;
+}
+
 static int branched_elsewhere(const sw_expr *e, double complex c, double r)
 {
     size_t m = e->nmv;
@@ -767,33 +791,24 @@ static int branched_elsewhere(const sw_expr *e, double complex c, double r)
         span[k] = nd->kind == N_POW && rational_exponent(&pp, &qq, nd->c) ? qq : 1;
         combos *= (double)span[k];
     }
-    if (combos > 4096)
+    if (combos > 4096 || combos < 2)
         return 0;
     double complex *st = malloc(2 * m * sizeof *st), *st2 = malloc(2 * m * sizeof *st2);
     double complex *vals = malloc(e->n * sizeof *vals);
+    char sing0[12], sing[12];
     int found = 0;
-    for (; st && st2 && vals && !found;) {
-        int principal = 1;
-        for (size_t k = 0; k < m; k++)
-            if (cur[k] != 0)
-                principal = 0;
-        if (!principal) {
-            double complex v;
-            int r1 = sw_expr_shifted_state(&v, st, e, c, 0, cur, vals);
-            int r2 = sw_expr_shifted_state(&v, st2, e, c + r, 0, cur, vals);
-            if (r1 <= -2 && r2 == -1)
-                found = 1;
-            for (size_t k = 0; k < m && !found && r1 == -1 && r2 == -1; k++) {
-                double a = cabs(st[2 * k]), b = cabs(st2[2 * k]);
-                if (a < 1e-7 * b || b < 1e-7 * a)
-                    found = 1;
-            }
+    if (st && st2 && vals && singular_nodes(sing0, e, c, r, cur, st, st2, vals)) {
+        for (;;) {
+            size_t k = 0;
+            while (k < m && ++cur[k] == span[k])
+                cur[k++] = 0;
+            if (k == m || found)
+                break;
+            if (singular_nodes(sing, e, c, r, cur, st, st2, vals))
+                for (size_t j = 0; j < m; j++)
+                    if (sing[j] && !sing0[j])
+                        found = 1;
         }
-        size_t k = 0;
-        while (k < m && ++cur[k] == span[k])
-            cur[k++] = 0;
-        if (k == m)
-            break;
     }
     free(st);
     free(st2);
