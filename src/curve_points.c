@@ -263,8 +263,13 @@ static int cand_push(candvec *v, const acb_t r, int disc, int lead)
     }
     c = &v->c[v->n++];
     memset(c, 0, sizeof *c);
-    c->z = CMPLX(arf_get_d(arb_midref(acb_realref(r)), ARF_RND_NEAR),
-                 arf_get_d(arb_midref(acb_imagref(r)), ARF_RND_NEAR));
+    /* a coordinate whose enclosure contains 0 is printed as 0 (still inside
+       the enclosure), so that roots on the axes read exactly */
+    double re = arb_contains_zero(acb_realref(r))
+                    ? 0.0 : arf_get_d(arb_midref(acb_realref(r)), ARF_RND_NEAR);
+    double im = arb_contains_zero(acb_imagref(r))
+                    ? 0.0 : arf_get_d(arb_midref(acb_imagref(r)), ARF_RND_NEAR);
+    c->z = CMPLX(re, im);
     arf_init(m);
     acb_get_rad_ubound_arf(m, r, 53);
     c->rad = arf_get_d(m, ARF_RND_UP);
