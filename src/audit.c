@@ -456,21 +456,7 @@ static sw_status walk(ctx *c, sw_germ *g, double complex z, sw_error *err)
 /* The logged germ with the largest t <= T. */
 static void log_germ(const ctx *c, sw_germ *g, double t)
 {
-    const sw_trace *tr = c->tr;
-    size_t lo = 0, hi = tr->nlog - 1;
-    if (t <= tr->t[0])
-        hi = 0;
-    while (lo < hi) {
-        size_t mid = (lo + hi + 1) / 2;
-        if (tr->t[mid] <= t)
-            lo = mid;
-        else
-            hi = mid - 1;
-    }
-    g->z = tr->z[lo];
-    g->sheet = tr->sheet[lo];
-    g->bank = SW_BANK_NONE;
-    memcpy(g->s, tr->state + lo * tr->len, tr->len * sizeof *g->s);
+    sw_trace_logged_germ(g, c->tr, t);
 }
 
 /* The continued germ at (K, S) on the followed path, into c->g. */

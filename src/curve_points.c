@@ -420,15 +420,6 @@ static int cmp_cand_z(const void *pa, const void *pb)
     return (cimag(a->z) > cimag(b->z)) - (cimag(a->z) < cimag(b->z));
 }
 
-/* Distance from c to the segment [a, b]. */
-static double seg_dist(double complex c, double complex a, double complex b)
-{
-    double complex ab = b - a;
-    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-    double s = L2 > 0 ? creal((c - a) * conj(ab)) / L2 : 0;
-    s = s < 0 ? 0 : s > 1 ? 1 : s;
-    return cabs(c - (a + s * ab));
-}
 
 /* Number of trial base angles, and the detour radius relative to the loop
  * radius (>1 so that detours stay outside the loop circles; with loop radii
@@ -446,7 +437,7 @@ static double base_quality(const candvec *v, double complex b)
     for (k = 0; k < v->n; k++)
         for (j = 0; j < v->n; j++) {
             if (j != k) {
-                double d = seg_dist(v->c[j].z, b, v->c[k].z) / v->c[j].r;
+                double d = sw_segment_distance(v->c[j].z, b, v->c[k].z) / v->c[j].r;
                 if (d < q) q = d;
             }
         }

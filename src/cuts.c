@@ -34,14 +34,6 @@ static double cross(double complex a, double complex b)
     return creal(a) * cimag(b) - cimag(a) * creal(b);
 }
 
-static double seg_dist(double complex z, double complex a, double complex b)
-{
-    double complex ab = b - a;
-    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-    double s = L2 > 0 ? creal((z - a) * conj(ab)) / L2 : 0;
-    s = s < 0 ? 0 : s > 1 ? 1 : s;
-    return cabs(z - (a + s * ab));
-}
 
 /* Segments [a,b] and [c,d] meet (touching counts); *s, *t the parameters. */
 static int seg_meet(double complex a, double complex b, double complex c, double complex d,
@@ -61,8 +53,8 @@ static int seg_meet(double complex a, double complex b, double complex c, double
         }
     }
     /* parallel, or just missing: touching within tol */
-    double d1 = seg_dist(a, c, d), d2 = seg_dist(b, c, d), d3 = seg_dist(c, a, b),
-           d4 = seg_dist(d, a, b);
+    double d1 = sw_segment_distance(a, c, d), d2 = sw_segment_distance(b, c, d), d3 = sw_segment_distance(c, a, b),
+           d4 = sw_segment_distance(d, a, b);
     double m = fmin(fmin(d1, d2), fmin(d3, d4));
     if (m <= tol) {
         if (s)
@@ -151,7 +143,7 @@ double sw_cuts_distance(const sw_cuts *c, double complex z)
         const sw_cut_piece *p = &c->piece[k];
         double complex a, b;
         piece_seg(p, 4 * (cabs(z) + cabs(p->from) + 1), &a, &b);
-        d = fmin(d, seg_dist(z, a, b));
+        d = fmin(d, sw_segment_distance(z, a, b));
     }
     return d;
 }
@@ -208,7 +200,7 @@ sw_status sw_cuts_default(sw_cuts *c, const sw_points *pts, sw_error *err)
             for (size_t j = 0; j < pts->n && ok; j++) {
                 if (j == k || pts->pt[j].kind == SW_POINT_REGULAR)
                     continue;
-                double dist = seg_dist(pts->pt[j].z, p, p + far * d);
+                double dist = sw_segment_distance(pts->pt[j].z, p, p + far * d);
                 if (dist < 0.05 * cabs(pts->pt[j].z - p))
                     ok = 0;
             }
@@ -285,7 +277,7 @@ static void add_ring(graph *g, const sw_cuts *c, double complex v, double scale,
     for (size_t k = 0; k < c->npieces; k++) {
         double complex p, q;
         piece_seg(&c->piece[k], far, &p, &q);
-        double d = seg_dist(v, p, q);
+        double d = sw_segment_distance(v, p, q);
         if (d > ON_CUT * scale)
             dmin = fmin(dmin, d);
     }
@@ -524,7 +516,7 @@ static double complex piece_point(const sw_cuts *c, size_t k, const sw_points *p
                 continue;
             double complex a, b;
             piece_seg(&c->piece[j], far, &a, &b);
-            d = fmin(d, seg_dist(m, a, b));
+            d = fmin(d, sw_segment_distance(m, a, b));
         }
         for (size_t j = 0; pts && j < pts->n; j++)
             d = fmin(d, cabs(m - pts->pt[j].z));
@@ -694,8 +686,8 @@ static sw_status check_component(sw_cut_report *r, sw_cut_component *cc, size_t 
         for (size_t j = 0; j < nh; j++) {
             double complex a2 = h[j], b2 = h[(j + 1) % nh];
             double d = seg_meet(a, bb, a2, b2, 0, NULL, NULL) ? 0 :
-                       fmin(fmin(seg_dist(a, a2, b2), seg_dist(bb, a2, b2)),
-                            fmin(seg_dist(a2, a, bb), seg_dist(b2, a, bb)));
+                       fmin(fmin(sw_segment_distance(a, a2, b2), sw_segment_distance(bb, a2, b2)),
+                            fmin(sw_segment_distance(a2, a, bb), sw_segment_distance(b2, a, bb)));
             dmin = fmin(dmin, d);
         }
     }
@@ -704,7 +696,7 @@ static sw_status check_component(sw_cut_report *r, sw_cut_component *cc, size_t 
             continue;
         double d = INFINITY;
         for (size_t j = 0; j < nh; j++)
-            d = fmin(d, seg_dist(pts->pt[k].z, h[j], h[(j + 1) % nh]));
+            d = fmin(d, sw_segment_distance(pts->pt[k].z, h[j], h[(j + 1) % nh]));
         if (d > ON_CUT * scale * 1e3)
             dmin = fmin(dmin, d);
     }
@@ -737,7 +729,7 @@ static sw_status check_component(sw_cut_report *r, sw_cut_component *cc, size_t 
                 if (c->piece[q].cut == cc->cuts[j]) {
                     double complex a, bb;
                     piece_seg(&c->piece[q], far, &a, &bb);
-                    onc = fmin(onc, seg_dist(pts->pt[k].z, a, bb));
+                    onc = fmin(onc, sw_segment_distance(pts->pt[k].z, a, bb));
                 }
         double w = sw_path_winding(&loop, pts->pt[k].z);
         if (onc > 1e-9 * scale + pts->pt[k].radius && isfinite(w) && fabs(w) > 0.5) {

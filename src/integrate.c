@@ -352,20 +352,7 @@ static int log_germ_at(ictx *c, const tline *l, double t, sw_germ *g)
     const sw_trace *tr = &l->tr;
     if (tr->nlog == 0)
         return -1;
-    size_t lo = 0, hi = tr->nlog - 1;
-    if (t <= tr->t[0])
-        hi = 0;
-    while (lo < hi) {
-        size_t mid = (lo + hi + 1) / 2;
-        if (tr->t[mid] <= t)
-            lo = mid;
-        else
-            hi = mid - 1;
-    }
-    g->z = tr->z[lo];
-    g->sheet = tr->sheet[lo];
-    g->bank = SW_BANK_NONE;
-    memcpy(g->s, tr->state + lo * tr->len, tr->len * sizeof *g->s);
+    sw_trace_logged_germ(g, tr, t);
     double complex target = sw_path_point(&l->path, t);
     if (g->z == target)
         return 0;
@@ -2702,15 +2689,6 @@ static sw_status bank_value(double complex *v, double complex *wout, sw_germ *g,
     return SW_OK;
 }
 
-static double seg_distance(double complex a, double complex b, double complex z)
-{
-    double complex ab = b - a;
-    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-    double s = L2 > 0 ? creal((z - a) * conj(ab)) / L2 : 0;
-    s = s < 0 ? 0 : s > 1 ? 1 : s;
-    return cabs(z - (a + s * ab));
-}
-
 sw_status sw_integrate_bank(sw_bank_integral *out, const sw_func *f, const sw_expr *R,
                             const sw_cuts *cuts, const sw_branch *b, const sw_points *pts,
                             double complex A, double complex B, int bank,
@@ -2824,7 +2802,7 @@ sw_status sw_integrate_bank(sw_bank_integral *out, const sw_func *f, const sw_ex
     if (ok) {
         for (size_t k = 0; k < pts->n; k++) {
             double complex z = pts->pt[k].z;
-            if (seg_distance(A, B, z) <= 1e-9 * scale)
+            if (sw_segment_distance(z, A, B) <= 1e-9 * scale)
                 continue;
             /* elliptic parameter of z: Re acosh((z - C) / (u/2)) >= 0 */
             double complex w = (z - C) / (0.5 * u);
@@ -2842,7 +2820,7 @@ sw_status sw_integrate_bank(sw_bank_integral *out, const sw_func *f, const sw_ex
         sw_status pst = sw_expr_pole_candidates(&pz, &npz, f, &e3);
         for (size_t k = 0; k < npz; k++) {
             double complex z = pz[k];
-            if (seg_distance(A, B, z) <= 1e-9 * scale)
+            if (sw_segment_distance(z, A, B) <= 1e-9 * scale)
                 continue;
             double complex w = (z - C) / (0.5 * u);
             double complex r = w + csqrt(w - 1) * csqrt(w + 1);

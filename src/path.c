@@ -360,6 +360,15 @@ double sw_path_scale(const sw_path *p)
     return s > 1e-300 ? s : 1e-300;
 }
 
+double sw_segment_distance(double complex z, double complex a, double complex b)
+{
+    double complex ab = b - a;
+    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
+    double s = L2 > 0 ? creal((z - a) * conj(ab)) / L2 : 0;
+    s = s < 0 ? 0 : s > 1 ? 1 : s;
+    return cabs(z - (a + s * ab));
+}
+
 void sw_path_reverse(sw_path *p)
 {
     for (size_t a = 0, b = p->n ? p->n - 1 : 0; a < b; a++, b--) {

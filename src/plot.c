@@ -264,14 +264,6 @@ static double cross2(double complex a, double complex b)
     return creal(a) * cimag(b) - cimag(a) * creal(b);
 }
 
-static double seg_dist(double complex z, double complex a, double complex b)
-{
-    double complex ab = b - a;
-    double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-    double s = L2 > 0 ? creal((z - a) * conj(ab)) / L2 : 0;
-    s = s < 0 ? 0 : s > 1 ? 1 : s;
-    return cabs(z - (a + s * ab));
-}
 
 /* Segments [a, b] and [c, d] meet or come within TOL of each other. */
 static int seg_hits(double complex a, double complex b, double complex c, double complex d,
@@ -289,8 +281,8 @@ static int seg_hits(double complex a, double complex b, double complex c, double
         if (s >= 0 && s <= 1 && t >= 0 && t <= 1)
             return 1;
     }
-    return seg_dist(a, c, d) <= tol || seg_dist(b, c, d) <= tol || seg_dist(c, a, b) <= tol ||
-           seg_dist(d, a, b) <= tol;
+    return sw_segment_distance(a, c, d) <= tol || sw_segment_distance(b, c, d) <= tol || sw_segment_distance(c, a, b) <= tol ||
+           sw_segment_distance(d, a, b) <= tol;
 }
 
 /* The parameter interval [*t0, *t1] (t >= 0) of the ray p + t d inside the
@@ -1355,7 +1347,7 @@ static int blocked(const filler *F, double complex a, double complex b)
 static int on_cut(const filler *F, double complex z)
 {
     for (size_t k = 0; k < F->nseg; k++)
-        if (seg_dist(z, F->cut[k].a, F->cut[k].b) <= F->tol)
+        if (sw_segment_distance(z, F->cut[k].a, F->cut[k].b) <= F->tol)
             return 1;
     return 0;
 }

@@ -281,12 +281,9 @@ cleanup:
     return st;
 }
 
-sw_status sw_trace_germ_at(sw_germ *g, const sw_trace *tr, const sw_func *f, double t,
-                           const sw_path *path, sw_error *err)
+size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t)
 {
-    if (tr->nlog == 0)
-        return sw_error_set(err, SW_EUSAGE, "the trace has no dense log");
-    /* last logged germ with t_k <= t */
+    /* binary search for the last logged germ with t_k <= t */
     size_t lo = 0, hi = tr->nlog - 1;
     if (t <= tr->t[0])
         hi = 0;
@@ -301,6 +298,15 @@ sw_status sw_trace_germ_at(sw_germ *g, const sw_trace *tr, const sw_func *f, dou
     g->sheet = tr->sheet[lo];
     g->bank = SW_BANK_NONE;
     memcpy(g->s, tr->state + lo * tr->len, tr->len * sizeof *g->s);
+    return lo;
+}
+
+sw_status sw_trace_germ_at(sw_germ *g, const sw_trace *tr, const sw_func *f, double t,
+                           const sw_path *path, sw_error *err)
+{
+    if (tr->nlog == 0)
+        return sw_error_set(err, SW_EUSAGE, "the trace has no dense log");
+    sw_trace_logged_germ(g, tr, t);
     double complex target = sw_path_point(path, t);
     if (g->z == target)
         return SW_OK;
@@ -380,17 +386,8 @@ double sw_path_winding(const sw_path *path, double complex c)
 double sw_path_distance(const sw_path *path, double complex c)
 {
     double d = INFINITY;
-    for (size_t k = 0; k < path->n; k++) {
-        double complex a = path->z[k];
-        if (k + 1 == path->n) {
-            d = fmin(d, cabs(c - a));
-            break;
-        }
-        double complex b = path->z[k + 1], ab = b - a;
-        double L2 = creal(ab) * creal(ab) + cimag(ab) * cimag(ab);
-        double s = L2 > 0 ? creal((c - a) * conj(ab)) / L2 : 0;
-        s = s < 0 ? 0 : s > 1 ? 1 : s;
-        d = fmin(d, cabs(c - (a + s * ab)));
-    }
+    for (size_t k = 0; k < path->n; k++)
+        d = fmin(d, k + 1 == path->n ? cabs(c - path->z[k])
+                                     : sw_segment_distance(c, path->z[k], path->z[k + 1]));
     return d;
 }

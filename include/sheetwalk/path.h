@@ -61,6 +61,8 @@ double complex sw_path_point(const sw_path *p, double t);
 /* Total length of the finite part and the scale max(length, max |z_k|, 1e-300). */
 double sw_path_length(const sw_path *p);
 double sw_path_scale(const sw_path *p);
+/* Distance from Z to the segment [A, B]. */
+double sw_segment_distance(double complex z, double complex a, double complex b);
 /* Reverse the path in place (banks kept with their vertices). */
 void sw_path_reverse(sw_path *p);
 /* Copy. */

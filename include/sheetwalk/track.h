@@ -54,6 +54,11 @@ void sw_trace_clear(sw_trace *tr);
 sw_status sw_track_run(sw_trace *tr, const sw_func *f, const sw_germ *start,
                        const sw_path *path, const sw_track_opts *o, sw_error *err);
 
+/* The logged germ with the largest parameter <= t (the first one when t is
+ * before it), copied into G (initialised for the traced function); returns
+ * its index.  The log must not be empty. */
+size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t);
+
 /* The germ on the tracked branch at parameter t (from the dense log, without
  * re-choosing the branch).  G must be initialised for F. */
 sw_status sw_trace_germ_at(sw_germ *g, const sw_trace *tr, const sw_func *f, double t,
