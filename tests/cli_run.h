@@ -99,4 +99,28 @@ static inline int cr_lines(const char *s)
     return n;
 }
 
+/* Run, require exit code WANT_CODE and an empty stderr, and parse stdout as
+ * one JSON document (cmocka must be included before this header). */
+#ifdef cmocka_unit_test
+#include <jansson.h>
+static inline json_t *cli_run_json(const char *input, const char *const *argv, int want_code)
+{
+    cli_result r = cli_run(input, argv);
+    if (r.code != want_code) {
+        print_error("%s %s: exit %d (wanted %d); stderr: %s\n", argv[1], argv[2] ? argv[2] : "",
+                    r.code, want_code, r.err);
+        fail();
+    }
+    json_error_t je;
+    json_t *d = json_loads(r.out, 0, &je);
+    if (d == NULL) {
+        print_error("not JSON: %s (%s)\n", r.out, je.text);
+        fail();
+    }
+    assert_string_equal(r.err, "");
+    cli_result_clear(&r);
+    return d;
+}
+#endif
+
 #endif

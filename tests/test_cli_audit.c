@@ -17,21 +17,7 @@
 
 static json_t *run_json(const char *const *argv, int want_code)
 {
-    cli_result r = cli_run(NULL, argv);
-    if (r.code != want_code) {
-        print_error("%s %s %s: exit %d (wanted %d); stderr: %s\n", argv[1], argv[2], argv[3],
-                    r.code, want_code, r.err);
-        fail();
-    }
-    json_error_t je;
-    json_t *d = json_loads(r.out, 0, &je);
-    if (d == NULL) {
-        print_error("not JSON: %s (%s)\n", r.out, je.text);
-        fail();
-    }
-    assert_string_equal(r.err, "");
-    cli_result_clear(&r);
-    return d;
+    return cli_run_json(NULL, argv, want_code);
 }
 
 /* A failure: exit code CODE, nothing on stdout, exactly one line on stderr

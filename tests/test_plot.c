@@ -680,20 +680,7 @@ static void test_bad_arguments(void **state)
 
 static json_t *run_json(const char *const *argv, int want_code)
 {
-    cli_result r = cli_run(NULL, argv);
-    if (r.code != want_code) {
-        print_error("exit %d (wanted %d); stderr: %s\n", r.code, want_code, r.err);
-        fail();
-    }
-    json_error_t je;
-    json_t *d = json_loads(r.out, 0, &je);
-    if (d == NULL) {
-        print_error("not JSON: %s (%s)\n", r.out, je.text);
-        fail();
-    }
-    assert_string_equal(r.err, "");
-    cli_result_clear(&r);
-    return d;
+    return cli_run_json(NULL, argv, want_code);
 }
 
 static void test_cli_json(void **state)
