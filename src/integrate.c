@@ -902,6 +902,309 @@ static int log_degree(ictx *c, const zmap *m, const sw_germ *g, const long *shif
     return p;
 }
 
+/* ------------------------------------------- operand orders from the tree */
+
+/* Expressions whose multivalued nodes (powers with constant exponent, logs)
+ * take operands built from z alone by + - * / integer powers, exp and the
+ * trigonometric and hyperbolic functions: each operand is single-valued and
+ * meromorphic at the end, u_k = x^(n_k) v_k(x) with v_k analytic and
+ * v_k(0) != 0.  Once around the end (counter-clockwise in x) continues its
+ * logarithm by exactly 2 pi i n_k, so the turns the loops of analyze_end
+ * would find are read off the tree instead of being tracked.  The orders
+ * n_k come from truncated Laurent series (jets) of the operands in x;
+ * coefficients that cancel to rounding are dropped, and a cancellation that
+ * is neither clean nor absent leaves the decision to the loops. */
+#define JET_TERMS 10       /* Laurent terms kept per operand */
+#define JET_ZERO 1e3       /* eps units of the terms' size: a cancelled coefficient */
+#define JET_UNSURE 1e-8    /* above JET_ZERO eps, below this (relative): no decision */
+
+typedef struct jet {
+    int ord;                    /* value = x^ord sum_i c[i] x^i, c[0] != 0 */
+    int nt;                     /* terms known */
+    double complex c[JET_TERMS];
+    double s[JET_TERMS];        /* size of the terms that formed c[i] (rounding scale) */
+} jet;
+
+/* Drop leading coefficients that cancelled; 0 on success, -1 when the
+ * order cannot be decided. */
+static int jet_norm(jet *j)
+{
+    int d = 0;
+    while (d < j->nt) {
+        double a = cabs(j->c[d]), s = j->s[d];
+        if (a > JET_UNSURE * s)
+            break;
+        if (a > JET_ZERO * EPS * s)
+            return -1;
+        d++;
+    }
+    if (d == j->nt)
+        return -1; /* cancelled to rounding in every known term */
+    if (d > 0) {
+        for (int i = 0; i + d < j->nt; i++) {
+            j->c[i] = j->c[i + d];
+            j->s[i] = j->s[i + d];
+        }
+        j->nt -= d;
+        j->ord += d;
+    }
+    return 0;
+}
+
+static void jet_const(jet *j, double complex v)
+{
+    memset(j, 0, sizeof *j);
+    j->nt = JET_TERMS;
+    j->c[0] = v;
+    j->s[0] = cabs(v);
+}
+
+static int jet_add(jet *r, const jet *a, const jet *b, double sign)
+{
+    int o = a->ord < b->ord ? a->ord : b->ord;
+    int da = a->ord - o, db = b->ord - o;
+    int nt = a->nt + da < b->nt + db ? a->nt + da : b->nt + db;
+    if (nt > JET_TERMS)
+        nt = JET_TERMS;
+    jet t;
+    memset(&t, 0, sizeof t);
+    t.ord = o;
+    t.nt = nt;
+    for (int i = 0; i < nt; i++) {
+        if (i >= da) {
+            t.c[i] += a->c[i - da];
+            t.s[i] += a->s[i - da];
+        }
+        if (i >= db) {
+            t.c[i] += sign * b->c[i - db];
+            t.s[i] += b->s[i - db];
+        }
+    }
+    *r = t;
+    return jet_norm(r);
+}
+
+static void jet_mul(jet *r, const jet *a, const jet *b)
+{
+    jet t;
+    memset(&t, 0, sizeof t);
+    t.ord = a->ord + b->ord;
+    t.nt = a->nt < b->nt ? a->nt : b->nt;
+    for (int i = 0; i < t.nt; i++)
+        for (int j = 0; j <= i; j++) {
+            t.c[i] += a->c[j] * b->c[i - j];
+            t.s[i] += a->s[j] * b->s[i - j];
+        }
+    *r = t;
+}
+
+static void jet_div(jet *r, const jet *a, const jet *b)
+{
+    jet t;
+    memset(&t, 0, sizeof t);
+    t.ord = a->ord - b->ord;
+    t.nt = a->nt < b->nt ? a->nt : b->nt;
+    double b0 = cabs(b->c[0]);
+    for (int i = 0; i < t.nt; i++) {
+        double complex v = a->c[i];
+        double s = a->s[i];
+        for (int j = 1; j <= i; j++) {
+            v -= b->c[j] * t.c[i - j];
+            s += b->s[j] * t.s[i - j];
+        }
+        t.c[i] = v / b->c[0];
+        t.s[i] = s / b0;
+    }
+    *r = t;
+}
+
+/* exp(sign * g) for an argument analytic at the end (ord >= 0), as a jet of
+ * order 0: e_0 = exp(g_0), i e_i = sum_j j g_j e_(i-j). */
+static int jet_exp(jet *r, const jet *a, double complex sign)
+{
+    if (a->ord < 0)
+        return -1; /* an essential singularity */
+    double complex g[JET_TERMS] = {0};
+    double sg[JET_TERMS] = {0};
+    int nt = a->nt + a->ord < JET_TERMS ? a->nt + a->ord : JET_TERMS;
+    for (int i = a->ord; i < nt; i++) {
+        g[i] = sign * a->c[i - a->ord];
+        sg[i] = a->s[i - a->ord];
+    }
+    jet t;
+    memset(&t, 0, sizeof t);
+    t.nt = nt;
+    t.c[0] = cexp(g[0]);
+    t.s[0] = cabs(t.c[0]);
+    for (int i = 1; i < nt; i++) {
+        double complex v = 0;
+        double s = 0;
+        for (int j = 1; j <= i; j++) {
+            v += (double)j * g[j] * t.c[i - j];
+            s += (double)j * sg[j] * t.s[i - j];
+        }
+        t.c[i] = v / (double)i;
+        t.s[i] = s / (double)i;
+    }
+    *r = t;
+    return 0;
+}
+
+/* sin, cos, sinh, cosh, tan, tanh from exponentials */
+static int jet_trig(jet *r, const jet *a, sw_node_kind kind)
+{
+    int circ = kind == N_SIN || kind == N_COS || kind == N_TAN;
+    double complex i1 = circ ? I : 1;
+    jet ep, em, s, c;
+    if (jet_exp(&ep, a, i1) != 0 || jet_exp(&em, a, -i1) != 0)
+        return -1;
+    /* sinh-like = (ep - em) / 2 (divided by i for sin); cosh-like = (ep + em) / 2 */
+    if (jet_add(&s, &ep, &em, -1) != 0 && kind != N_COS && kind != N_COSH)
+        return -1;
+    if (jet_add(&c, &ep, &em, 1) != 0 && kind != N_SIN && kind != N_SINH)
+        return -1;
+    double complex hs = circ ? 1 / (2 * I) : 0.5;
+    for (int i = 0; i < JET_TERMS; i++) {
+        s.c[i] *= hs;
+        s.s[i] *= 0.5;
+        c.c[i] *= 0.5;
+        c.s[i] *= 0.5;
+    }
+    if (kind == N_SIN || kind == N_SINH)
+        *r = s;
+    else if (kind == N_COS || kind == N_COSH)
+        *r = c;
+    else
+        jet_div(r, &s, &c);
+    return 0;
+}
+
+/* Jets of every node up to the root of each multivalued operand at the end
+ * x = 0 of M; fills ORD (n_k) and, when REACH is not NULL, the radius in x
+ * within which no v_k can vanish by the known terms (a root of the series
+ * sum |c_i / c_0| r^i = 1/2 bounds it from below).  Returns 0, or -1 when
+ * the tree is not of the simple kind (then the loops decide). */
+static int operand_orders(const ictx *c, const zmap *m, long *ord, double *reach)
+{
+    if (!c->expr || c->nmv == 0 || c->R != NULL)
+        return -1;
+    const sw_expr *e = sw_func_expr(c->f);
+    jet stackj[64];
+    char stackd[64];
+    jet *J = e->n <= 64 ? stackj : malloc(e->n * sizeof *J);
+    char *dep = e->n <= 64 ? stackd : malloc(e->n);
+    int rc = 0;
+    if (J == NULL || dep == NULL) {
+        rc = -1;
+        goto done;
+    }
+    double rmin = INFINITY;
+    for (size_t k = 0; k < e->n && rc == 0; k++) {
+        const sw_node *nd = &e->node[k];
+        dep[k] = (char)(nd->mv >= 0 || (nd->a >= 0 && dep[nd->a]) || (nd->b >= 0 && dep[nd->b]));
+        if (nd->mv >= 0) {
+            /* a power with constant exponent or a log, of an operand free of
+               other multivalued nodes */
+            if (nd->kind == N_POWG || dep[nd->a]) {
+                rc = -1;
+                break;
+            }
+            const jet *u = &J[nd->a];
+            ord[nd->mv] = u->ord;
+            if (reach) {
+                /* the root of sum_i |c_i / c_0| r^i = 1/2 (increasing in r),
+                   by bisection on log r */
+                double q[JET_TERMS], c0 = cabs(u->c[0]), lo = -60, hi = 60;
+                int top = 0;
+                for (int i = 1; i < u->nt; i++)
+                    if ((q[i] = cabs(u->c[i]) / c0) > 0)
+                        top = i;
+                for (int it = 0; it < 24 && top > 0; it++) {
+                    double mid = 0.5 * (lo + hi), r = exp(mid), sum = 0;
+                    for (int i = top; i >= 1; i--)
+                        sum = (sum + q[i]) * r;
+                    if (sum > 0.5)
+                        hi = mid;
+                    else
+                        lo = mid;
+                }
+                rmin = fmin(rmin, top == 0 ? INFINITY : exp(lo));
+            }
+            continue;
+        }
+        if (dep[k] || !e->need[k])
+            continue; /* above the operands: not needed here */
+        const jet *a = nd->a >= 0 ? &J[nd->a] : NULL, *b = nd->b >= 0 ? &J[nd->b] : NULL;
+        switch (nd->kind) {
+        case N_CONST:
+            if (nd->c == 0)
+                rc = -1;
+            else
+                jet_const(&J[k], nd->c);
+            break;
+        case N_Z:
+            /* segment: z = base + dir x;  ray: z = x^-1 (dir + base x) */
+            if (m->inf) {
+                jet_const(&J[k], m->dir);
+                J[k].ord = -1;
+                J[k].c[1] = m->base;
+                J[k].s[1] = cabs(m->base);
+            } else if (m->base == 0) {
+                jet_const(&J[k], m->dir);
+                J[k].ord = 1;
+            } else {
+                jet_const(&J[k], m->base);
+                J[k].c[1] = m->dir;
+                J[k].s[1] = cabs(m->dir);
+            }
+            break;
+        case N_ADD: rc = jet_add(&J[k], a, b, 1); break;
+        case N_SUB: rc = jet_add(&J[k], a, b, -1); break;
+        case N_MUL: jet_mul(&J[k], a, b); break;
+        case N_DIV: jet_div(&J[k], a, b); break;
+        case N_NEG:
+            J[k] = *a;
+            for (int i = 0; i < JET_TERMS; i++)
+                J[k].c[i] = -J[k].c[i];
+            break;
+        case N_POWI: {
+            long p = nd->k < 0 ? -nd->k : nd->k;
+            jet r, sq = *a;
+            jet_const(&r, 1);
+            for (; p > 0; p >>= 1) {
+                if (p & 1)
+                    jet_mul(&r, &r, &sq);
+                if (p > 1)
+                    jet_mul(&sq, &sq, &sq);
+            }
+            if (nd->k < 0) {
+                jet one;
+                jet_const(&one, 1);
+                jet_div(&J[k], &one, &r);
+            } else {
+                J[k] = r;
+            }
+            break;
+        }
+        case N_EXP: rc = jet_exp(&J[k], a, 1); break;
+        case N_SIN: case N_COS: case N_TAN: case N_SINH: case N_COSH: case N_TANH:
+            rc = jet_trig(&J[k], a, nd->kind);
+            break;
+        default: rc = -1; break; /* w, or anything new */
+        }
+        if (rc == 0 && (J[k].nt < 1 || !finite_c(J[k].c[0]) || J[k].c[0] == 0))
+            rc = -1;
+    }
+    if (rc == 0 && reach)
+        *reach = rmin;
+done:
+    if (J != stackj)
+        free(J);
+    if (dep != stackd)
+        free(dep);
+    return rc;
+}
+
 /* Classify the end x = 0 of map M (the zone reaches at most X0).
  *
  * Loops on a ladder of radii r_j = X0 16^-(j+1): the structure is read at
@@ -970,13 +1273,28 @@ static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei)
         goto numeric;
     }
     int shiftmode = 0;
+    /* the turns from the tree when it is simple (see operand_orders): no
+       loops; radii beyond the disc where the operands keep their structure
+       are out of reach, as a disagreeing loop would have put them */
+    int structural = 0;
+    double sreach = 0;
+    if (shift && operand_orders(c, m, shift, &sreach) == 0 && r[J - 1] <= sreach) {
+        structural = shiftmode = 1;
+        for (int j = 0; j < nr; j++) {
+            if (j > 0)
+                memcpy(shift + (size_t)j * c->nmv, shift, c->nmv * sizeof *shift);
+            shiftok[j] = 1;
+            if (r[j] > sreach)
+                alive[j] = 0;
+        }
+    }
     for (size_t k = 1; k <= qmax && ei->kind == END_REGULAR; k++) {
         double complex ratio[NRADII] = {0};
         for (int j = 0; j < nr; j++) {
             if (!alive[j])
                 continue;
             double complex fk;
-            if (k == 1 || !shiftmode || !shiftok[j]) {
+            if (!structural && (k == 1 || !shiftmode || !shiftok[j])) {
                 if (k > 1 && shiftmode && !shiftok[j]) {
                     alive[j] = 0; /* operands change at this radius: beyond reach */
                     continue;
@@ -988,11 +1306,11 @@ static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei)
                 if (k == 1 && shift)
                     shiftok[j] = shift_of(c, &g[j], &l[j], shift + (size_t)j * c->nmv);
             }
-            if (k == 1 && j == J)
+            if (k == 1 && j == J && !structural)
                 shiftmode = shift && shiftok[J] && shiftok[J - 1] &&
                             memcmp(shift + (size_t)J * c->nmv, shift + (size_t)(J - 1) * c->nmv,
                                    c->nmv * sizeof *shift) == 0;
-            if (shiftmode && shiftok[j] && k > 1) {
+            if (shiftmode && shiftok[j] && (k > 1 || structural)) {
                 fk = eval_shifted(c, m, &g[j], shift + (size_t)j * c->nmv, (long)k);
             } else {
                 double complex w = germ_value(c, &l[j]);
