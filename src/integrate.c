@@ -86,6 +86,7 @@ const char *sw_end_rule_name(sw_end_rule r)
     case SW_RULE_QAWS: return "qaws";
     case SW_RULE_LAGUERRE: return "gauss-laguerre";
     case SW_RULE_TANH_SINH: return "tanh-sinh";
+    case SW_RULE_JACOBI_LOG: return "gauss-jacobi-log";
     default: return "none";
     }
 }
@@ -1468,21 +1469,21 @@ typedef struct rule_entry {
     size_t n;
     double a, b;
     gsl_integration_fixed_workspace *w;
+    double *logw;           /* Jacobi with a = 0: the weights of log_weights() */
     unsigned long used;
 } rule_entry;
 
 static _Thread_local rule_entry rule_cache[RULE_CACHE];
 static _Thread_local unsigned long rule_clock;
 
-static const gsl_integration_fixed_workspace *fixed_rule(const gsl_integration_fixed_type *type,
-                                                         size_t n, double a, double b)
+static rule_entry *rule_get(const gsl_integration_fixed_type *type, size_t n, double a, double b)
 {
     rule_entry *old = &rule_cache[0];
     for (int k = 0; k < RULE_CACHE; k++) {
         rule_entry *e = &rule_cache[k];
         if (e->w && e->type == type && e->n == n && e->a == a && e->b == b) {
             e->used = ++rule_clock;
-            return e->w;
+            return e;
         }
         if (e->used < old->used)
             old = e;
@@ -1493,13 +1494,96 @@ static const gsl_integration_fixed_workspace *fixed_rule(const gsl_integration_f
         return NULL;
     if (old->w)
         gsl_integration_fixed_free(old->w);
+    free(old->logw);
     old->type = type;
     old->n = n;
     old->a = a;
     old->b = b;
     old->w = w;
+    old->logw = NULL;
     old->used = ++rule_clock;
-    return w;
+    return old;
+}
+
+static const gsl_integration_fixed_workspace *fixed_rule(const gsl_integration_fixed_type *type,
+                                                         size_t n, double a, double b)
+{
+    const rule_entry *e = rule_get(type, n, a, b);
+    return e ? e->w : NULL;
+}
+
+/* Product integration for the logarithmic part (P. J. Davis, P. Rabinowitz,
+ * Methods of Numerical Integration, 2nd ed., Academic Press 1984, on product
+ * rules): weights W_j = int_0^1 s^alpha log s l_j(s) ds of the Lagrange basis
+ * l_j at the N nodes s_j of the Gauss-Jacobi rule for s^alpha (weights w_j),
+ * so that sum_j W_j A(s_j) = int_0^1 s^alpha log s A(s) ds exactly for
+ * polynomials A of degree < N.  With pi_k the monic orthogonal polynomials of
+ * s^alpha and h_k = int s^alpha pi_k^2, Gauss interpolation gives
+ * l_j = w_j sum_(k<N) pi_k(s_j) pi_k / h_k, so W_j = w_j sum_k pi_k(s_j) nu_k / h_k
+ * with the modified moments nu_k = int_0^1 s^alpha log s pi_k(s) ds.  The
+ * recurrence of pi_k and h_k come from the rule itself (Stieltjes' procedure
+ * on the discrete measure, exact for k < N: W. Gautschi, Orthogonal
+ * Polynomials: Computation and Approximation, OUP 2004, ch. 2).  The moments
+ * in closed form (our derivation): Rodrigues' formula
+ * s^alpha pi_k = (-1)^k / (k+alpha+1)_k d^k/ds^k [s^(k+alpha) (1-s)^k] and k
+ * integrations by parts give int_0^1 s^g pi_k ds = (g-alpha)(g-alpha-1)...(g-alpha-k+1)
+ * B(g+1, k+1) / (k+alpha+1)_k; its derivative in g at g = alpha is
+ *   nu_0 = -1/(alpha+1)^2,
+ *   nu_k = (-1)^(k+1) (k-1)! k! / ((alpha+1)(alpha+2)...(alpha+k+1) (k+alpha+1)_k),
+ * with (y)_k = y (y+1) ... (y+k-1).  Checked against int_0^1 x^a log x x^m dx
+ * = -1/(a+m+1)^2 in tests/test_integrate.c. */
+static int log_weights(rule_entry *e)
+{
+    if (e->logw)
+        return 0;
+    size_t n = e->n;
+    const double *x = e->w->x, *w = e->w->weights;
+    double al = e->b;
+    double *W = calloc(3 * n, sizeof *W);
+    if (W == NULL)
+        return -1;
+    double *p0 = W + n, *p1 = W + 2 * n; /* pi_(k-1), pi_k at the nodes */
+    double hprev = 0, nu = -1 / ((al + 1) * (al + 1));
+    double ratio = 1; /* nu_k / nu_(k-1) pieces, accumulated in nu */
+    for (size_t j = 0; j < n; j++) {
+        p0[j] = 0;
+        p1[j] = 1;
+    }
+    for (size_t k = 0; k < n; k++) {
+        double h = 0, a = 0;
+        for (size_t j = 0; j < n; j++) {
+            h += w[j] * p1[j] * p1[j];
+            a += w[j] * x[j] * p1[j] * p1[j];
+        }
+        if (!(h > 0))
+            break; /* underflow: the remaining terms are negligible */
+        if (k >= 1) {
+            /* nu_k from nu_(k-1) (k >= 2), or in full for k = 1 */
+            double kk = (double)k;
+            if (k == 1)
+                nu = 1 / ((al + 1) * (al + 2) * (al + 2));
+            else {
+                /* (k-1)! k! grows by (k-1) k; (alpha+1)_(k+1) by (alpha+k+1);
+                   (k+alpha+1)_k / (k+alpha)_(k-1) = (2k+alpha-1)(2k+alpha) / (k+alpha) */
+                ratio = -(kk - 1) * kk / (al + kk + 1) * (al + kk) /
+                        ((2 * kk + al - 1) * (2 * kk + al));
+                nu *= ratio;
+            }
+        }
+        for (size_t j = 0; j < n; j++)
+            W[j] += w[j] * p1[j] * nu / h;
+        /* pi_(k+1) = (s - a_k) pi_k - b_k pi_(k-1), b_k = h_k / h_(k-1) */
+        a /= h;
+        double b = k == 0 ? 0 : h / hprev;
+        for (size_t j = 0; j < n; j++) {
+            double pn = (x[j] - a) * p1[j] - b * p0[j];
+            p0[j] = p1[j];
+            p1[j] = pn;
+        }
+        hprev = h;
+    }
+    e->logw = W;
+    return 0;
 }
 
 /* ------------------------------------------------------- Gauss-Jacobi */
@@ -1766,6 +1850,81 @@ static int lag_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol
     return 0;
 }
 
+/* ---------------------------------------------- Gauss-Jacobi with logs */
+
+/* One rule of order N for a logarithmic end of degree 1 with real alpha,
+ * F = x^alpha (A(x) log x + B(x)), A and B analytic: with x = X s,
+ *   int_0^X F dx = X^(alpha+1) int_0^1 s^alpha (A log X + B + A log s) ds,
+ * the first two terms by Gauss-Jacobi (weight s^alpha), the last by the
+ * product weights of log_weights() at the same nodes: N values of F and N
+ * of F continued once around the end (A = (F1/mu - F) / (2 pi i x^alpha)),
+ * no tracking.  Exact when A and B are polynomials of degree < N. */
+static int gjl_rule(ictx *c, const zmap *m, const endinfo *ei, double X, int n,
+                    double complex *Iv, double *absum, double *rnd)
+{
+    double alpha = creal(ei->alpha);
+    rule_entry *re = rule_get(gsl_integration_fixed_jacobi, (size_t)n, 0.0, alpha);
+    if (re == NULL || log_weights(re) != 0)
+        return fail(c, SW_EINTERNAL, "Gauss-Jacobi rule not available for this exponent"), -1;
+    const double *sn = re->w->x, *wt = re->w->weights, *W = re->logw;
+    double lX = log(X);
+    double complex sum = 0;
+    double asum = 0, rsum = 0;
+    for (int j = 0; j < n; j++) {
+        double complex F, xh;
+        if (eval_F(c, m, X * sn[j], &F, &xh) != 0)
+            return -1;
+        double complex F1 = eval_shifted(c, m, &c->g, ei->shift, 1);
+        double complex xa = cpow(xh, alpha);
+        double complex A = (F1 / ei->mu - F) / CMPLX(0.0, 2 * PI) / xa;
+        double complex B = F / xa - A * clog(xh);
+        double complex t = wt[j] * (A * lX + B) + W[j] * A;
+        if (!finite_c(t))
+            return fail(c, SW_ESINGULAR, "the integrand is not finite at a quadrature point "
+                                         "next to a logarithmic end"), -1;
+        sum += t;
+        double a = fabs(wt[j]) * cabs(A * lX + B) + fabs(W[j]) * cabs(A);
+        asum += a;
+        rsum += a * relnoise(m, c->g.z);
+    }
+    double fac = pow(X, alpha + 1);
+    *Iv = fac * sum;
+    *absum = fac * asum;
+    *rnd = fac * rsum;
+    return 0;
+}
+
+/* Orders 4, 8, 16, ... as gj_c, with the same error estimate. */
+static int gjl_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol_abs,
+                 double complex *Iv, double *err, int *ok)
+{
+    double complex prev = 0, cur = 0;
+    double asum = 0, rnd = 0, dprev = INFINITY;
+    *ok = 0;
+    static const int orders[] = {4, 8, 16, 24, 32, 48, 64};
+    for (size_t io = 0; io < sizeof orders / sizeof orders[0]; io++) {
+        int n = orders[io];
+        if (gjl_rule(c, m, ei, X, n, &cur, &asum, &rnd) != 0)
+            return -1;
+        if (io > 0) {
+            double d = cabs(cur - prev);
+            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
+            e += 50 * EPS * asum;
+            double tol = target(c, tol_abs, cabs(cur), asum);
+            c->l1 = asum;
+            *Iv = cur;
+            *err = e + rnd;
+            if (e <= fmax(tol, 2 * rnd)) {
+                *ok = 1;
+                return 0;
+            }
+            dprev = d;
+        }
+        prev = cur;
+    }
+    return 0;
+}
+
 /* ----------------------------------------------------------- tanh-sinh */
 
 /* int_0^X F dx for an end of unknown structure: tanh-sinh on [x_c, X]
@@ -1945,6 +2104,24 @@ static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int
         *rule = SW_RULE_NONE;
         return qag_map(c, m, 0, X, tol_abs, val, abserr, ok);
     }
+    if (ei->kind == END_LOG && ei->logdeg == 1 && cimag(ei->alpha) == 0 &&
+        creal(ei->alpha) > -1 && depth == 0) {
+        /* the product rule on the whole zone; when A or B vary too fast for
+           it (another singular point near the zone), Gauss-Laguerre with
+           its splitting below */
+        double complex Iv;
+        double e;
+        int good;
+        if (gjl_c(c, m, ei, X, tol_abs, &Iv, &e, &good) != 0)
+            return -1;
+        if (good) {
+            *rule = SW_RULE_JACOBI_LOG;
+            *val = Iv;
+            *abserr = e;
+            *ok = 1;
+            return 0;
+        }
+    }
     if (ei->kind == END_LOG && creal(ei->alpha) > -1 &&
         (ei->logdeg == 1 || (cimag(ei->alpha) == 0 && depth < LOG_SPLIT_DEPTH))) {
         if (cimag(ei->alpha) == 0 && depth < LOG_SPLIT_DEPTH) {
@@ -2066,6 +2243,7 @@ static const char *rule_method(sw_end_rule r)
     case SW_RULE_QAWS: return "qaws";
     case SW_RULE_LAGUERRE: return "gauss-laguerre";
     case SW_RULE_TANH_SINH: return "tanh-sinh";
+    case SW_RULE_JACOBI_LOG: return "gauss-jacobi-log";
     default: return "gauss-kronrod";
     }
 }

@@ -273,7 +273,22 @@ static void test_log_ends(void **state)
         ires x = integ(f, 0, NULL, "0; 1", 0, NULL);
         check_value(&x, -1 / (as[k] * as[k]), f, "DLMF 5.12.1 differentiated in a");
         assert_int_equal(x.r.end[0].logarithmic, 1);
+        assert_int_equal(x.r.end[0].rule, SW_RULE_JACOBI_LOG);
         sw_integral_clear(&x.r);
+    }
+    /* the product weights for x^alpha log x against a polynomial factor:
+       int_0^1 t^(a-1) (1+t)^3 log t dt = -sum_m C(3,m) / (a+m)^2 (DLMF 5.12.1
+       differentiated in a, termwise) */
+    {
+        const double a = 0.37;
+        double want = 0;
+        for (int m = 0, bin = 1; m <= 3; bin = bin * (3 - m) / (m + 1), m++)
+            want -= bin / ((a + m) * (a + m));
+        ires y = integ("z^(-0.63)*(1+z)^3*log(z)", 0, NULL, "0; 1", 0, NULL);
+        check_value(&y, want, "int_0^1 z^(-0.63) (1+z)^3 log z dz",
+                    "DLMF 5.12.1 differentiated in a, termwise");
+        assert_int_equal(y.r.end[0].rule, SW_RULE_JACOBI_LOG);
+        sw_integral_clear(&y.r);
     }
     ires x = integ("log(1-z)/z", 0, NULL, "0; 1", 0, NULL);
     check_value(&x, -gsl_sf_dilog(1.0), "int_0^1 log(1-z)/z dz", "DLMF 25.12.2, gsl_sf_dilog");
@@ -639,11 +654,14 @@ static void test_mpmath_random(void **state)
         c[k] = tu_range(&rng, 0.1, 3);
         /* DLMF 15.6.1: int_0^1 t^(a-1)(1-t)^(b-1)(1+c t)^(-1/2) dt
                         = B(a,b) 2F1(1/2, a; a+b; -c);
-           DLMF 13.4.1: int_0^1 t^(a-1)(1-t)^(b-1) e^(c t) dt = B(a,b) 1F1(a; a+b; c) */
+           DLMF 13.4.1: int_0^1 t^(a-1)(1-t)^(b-1) e^(c t) dt = B(a,b) 1F1(a; a+b; c);
+           with b = 1 differentiated in a (mpmath's diff):
+           int_0^1 t^(a-1) log t e^(c t) dt = d/da [1F1(a; a+1; c) / a] */
         used += (size_t)snprintf(
             cmd + used, sizeof cmd - used,
             "a=m.mpf(%.17g); b=m.mpf(%.17g); c=m.mpf(%.17g)\n"
-            "p(m.beta(a,b)*m.hyp2f1(m.mpf(1)/2,a,a+b,-c)); p(m.beta(a,b)*m.hyp1f1(a,a+b,c))\n",
+            "p(m.beta(a,b)*m.hyp2f1(m.mpf(1)/2,a,a+b,-c)); p(m.beta(a,b)*m.hyp1f1(a,a+b,c))\n"
+            "p(m.diff(lambda s: m.hyp1f1(s,s+1,c)/s, a))\n",
             a[k], b[k], c[k]);
     }
     snprintf(cmd + used, sizeof cmd - used, "' 2>&1");
@@ -652,16 +670,16 @@ static void test_mpmath_random(void **state)
         print_error("cannot run /usr/bin/python3 (install python3-mpmath)\n");
         fail();
     }
-    double ref[2 * NCASE][2];
+    double ref[3 * NCASE][2];
     int got = 0;
     char line[512];
     while (fgets(line, sizeof line, fp))
-        if (got < 2 * NCASE && sscanf(line, "%lf %lf", &ref[got][0], &ref[got][1]) == 2)
+        if (got < 3 * NCASE && sscanf(line, "%lf %lf", &ref[got][0], &ref[got][1]) == 2)
             got++;
         else
             print_error("python3: %s", line);
     int status = pclose(fp);
-    if (status != 0 || got != 2 * NCASE) {
+    if (status != 0 || got != 3 * NCASE) {
         print_error("the mpmath reference failed (exit status %d, %d values): /usr/bin/python3 "
                     "with python3-mpmath is required for this test\n", status, got);
         fail();
@@ -674,16 +692,25 @@ static void test_mpmath_random(void **state)
         snprintf(f, sizeof f, "z^%s*(1-z)^%s/sqrt(1+%s*z)", A, Bs, C);
         ires x = integ(f, 0, NULL, "0; 1", 0, NULL);
         assert_int_equal(x.st, SW_OK);
-        TU_PROP_CLOSE(&rng, k, x.r.value, CMPLX(ref[2 * k][0], ref[2 * k][1]), REL, f,
+        TU_PROP_CLOSE(&rng, k, x.r.value, CMPLX(ref[3 * k][0], ref[3 * k][1]), REL, f,
                       "DLMF 15.6.1 by mpmath");
-        assert_true(cabs(x.r.value - CMPLX(ref[2 * k][0], ref[2 * k][1])) <=
-                    x.r.abserr + 1e-15 * ref[2 * k][0]);
+        assert_true(cabs(x.r.value - CMPLX(ref[3 * k][0], ref[3 * k][1])) <=
+                    x.r.abserr + 1e-15 * ref[3 * k][0]);
         sw_integral_clear(&x.r);
         snprintf(f, sizeof f, "z^%s*(1-z)^%s*exp(%s*z)", A, Bs, C);
         x = integ(f, 0, NULL, "0; 1", 0, NULL);
         assert_int_equal(x.st, SW_OK);
-        TU_PROP_CLOSE(&rng, k, x.r.value, CMPLX(ref[2 * k + 1][0], ref[2 * k + 1][1]), REL, f,
+        TU_PROP_CLOSE(&rng, k, x.r.value, CMPLX(ref[3 * k + 1][0], ref[3 * k + 1][1]), REL, f,
                       "DLMF 13.4.1 by mpmath");
+        sw_integral_clear(&x.r);
+        /* a logarithmic end with analytic A = e^(c t), B = 0 */
+        snprintf(f, sizeof f, "z^%s*log(z)*exp(%s*z)", A, C);
+        x = integ(f, 0, NULL, "0; 1", 0, NULL);
+        assert_int_equal(x.st, SW_OK);
+        double complex want = CMPLX(ref[3 * k + 2][0], ref[3 * k + 2][1]);
+        TU_PROP_CLOSE(&rng, k, x.r.value, want, REL, f,
+                      "DLMF 13.4.1 differentiated in a, by mpmath");
+        assert_true(cabs(x.r.value - want) <= x.r.abserr + 8 * 2.2e-16 * cabs(want));
         sw_integral_clear(&x.r);
     }
 }

@@ -107,7 +107,8 @@ typedef enum sw_end_rule {
     SW_RULE_JACOBI,         /* Gauss-Jacobi in s = x^(1/q) */
     SW_RULE_QAWS,           /* algebraic-logarithmic weight (QAWS) */
     SW_RULE_LAGUERRE,       /* x = X exp(-u/(alpha+1)), Gauss-Laguerre in u (logs) */
-    SW_RULE_TANH_SINH       /* double-exponential rule with a modelled tail */
+    SW_RULE_TANH_SINH,      /* double-exponential rule with a modelled tail */
+    SW_RULE_JACOBI_LOG      /* Gauss-Jacobi with product weights for x^alpha log x */
 } sw_end_rule;
 
 /* A singular end of the path (a finite point or infinity). */
