@@ -123,6 +123,19 @@ typedef struct tline {
     double min_step;   /* tracker floor for this line */
 } tline;
 
+/* An expression end whose operands have simple structure (operand_orders):
+ * inside the disc |x| < xj every operand is u_k = x^(n_k) v_k(x) with v_k
+ * within 1/2 of v_k(0), so the branch at any x in (0, xj] follows from the
+ * germ GJ at xj in closed form (anchor_jump) and the tracked line starts (or
+ * ends) at xj instead of next to the end. */
+typedef struct anchor {
+    double complex base, dir; /* z = base + x dir */
+    double xj, xs;            /* the line's end at xj; nothing is evaluated below xs */
+    long *ord;                /* n_k */
+    sw_germ gj;               /* the tracked germ at xj */
+    sw_germ gs;               /* the germ at xs (reported as the path's end) */
+} anchor;
+
 typedef struct zmap {
     int inf;                  /* 0: z = base + x dir;  1: z = base + dir / x */
     double complex base, dir;
@@ -131,6 +144,8 @@ typedef struct zmap {
        (all 0 elsewhere): rfac * kappa from the cancellation model, and the
        measured noise eta at x = xeta, growing like 1/x towards the end */
     double rfac, eta, xeta;
+    const anchor *anc;        /* the end x = 0 (NULL: every point from the lines) */
+    const anchor *anc_far;    /* segments: the end x = 1 */
 } zmap;
 
 typedef struct ictx {
@@ -434,9 +449,33 @@ static int quick_root(const ictx *c, const tline *l, double t, double complex z1
 /* F(x) = R(z, w) dz/dx on the tracked branch, at the logged germ nearest the
  * point z(x); *XH receives the local coordinate of the point actually used,
  * c->g the germ there. */
+static int anchor_jump(ictx *c, sw_germ *out, const anchor *a, const sw_germ *in, double x,
+                       double tol);
+
 static int eval_F(ictx *c, const zmap *m, double x, double complex *F, double complex *xh)
 {
     double t;
+    const anchor *a = NULL;
+    double xa = 0;
+    if (m->anc && x < m->anc->xj) {
+        a = m->anc;
+        xa = x;
+    } else if (m->anc_far && 1 - x < m->anc_far->xj) {
+        a = m->anc_far;
+        xa = 1 - x;
+    }
+    if (a) {
+        /* inside an anchor's disc: the branch in closed form from its germ */
+        if (anchor_jump(c, &c->g, a, &a->gj, fmax(xa, a->xs), 1.0) != 0)
+            return fail(c, SW_EINTERNAL, "a point next to a singular end could not be "
+                                         "reached from the anchor"), -1;
+        double complex z = c->g.z, X = map_x(m, z);
+        *F = integrand_at(c, z, sw_func_value(c->f, &c->g)) * map_jac(m, X);
+        if (xh)
+            *xh = X;
+        c->evals++;
+        return 0;
+    }
     if (m->inf && !(x >= RAY_DEPTH))
         x = RAY_DEPTH; /* infinity itself (a rule's end node): the farthest tracked point */
     const tline *l = find_line(c, m, map_z(m, x), &t);
@@ -1204,6 +1243,102 @@ done:
     if (dep != stackd)
         free(dep);
     return rc;
+}
+
+/* The germ at X in (0, xj] of anchor A from the germ IN at another point of
+ * its disc: L_k(x) = Log u_k(x) + 2 pi i m_k with m_k the integer nearest to
+ * the continuation Im L_k(in) + Arg(v_k(x) / v_k(x_in)), v_k = u_k / x^(n_k)
+ * (on the segment x is real and positive, so x^(n_k) adds no argument; the
+ * disc keeps v_k within 1/2 of v_k(0), so the ratio stays in the right half
+ * plane and its principal Arg is the continued one).  As a check of the
+ * truncated series, -1 when some |v_k(x)/v_k(x_in) - 1| exceeds TOL. */
+static int anchor_jump(ictx *c, sw_germ *out, const anchor *a, const sw_germ *in, double x,
+                       double tol)
+{
+    const sw_expr *e = sw_func_expr(c->f);
+    double complex stackbuf[256], v;
+    double complex *vals = e->n <= 256 ? stackbuf : malloc(e->n * sizeof *vals);
+    if (vals == NULL)
+        return -1;
+    double complex z = a->base + x * a->dir;
+    double xin = creal((in->z - a->base) / a->dir), xo = creal((z - a->base) / a->dir);
+    int rc = sw_expr_principal_state(&v, out->s, e, z, 0, vals) == -1 && xin > 0 && xo > 0
+                 ? 0 : -1;
+    for (size_t k = 0; k < c->nmv && rc == 0; k++) {
+        double complex r = out->s[2 * k] / in->s[2 * k] *
+                           exp((double)a->ord[k] * (log(xin) - log(xo)));
+        if (!(cabs(r - 1) <= tol)) {
+            rc = -1;
+            break;
+        }
+        double want = cimag(in->s[2 * k + 1]) + carg(r);
+        double have = cimag(out->s[2 * k + 1]);
+        out->s[2 * k + 1] += CMPLX(0.0, 2 * PI * nearbyint((want - have) / (2 * PI)));
+    }
+    if (rc == 0) {
+        out->z = z;
+        out->bank = SW_BANK_NONE;
+        out->sheet = 0;
+    }
+    if (vals != stackbuf)
+        free(vals);
+    return rc;
+}
+
+static void anchor_free(anchor *a)
+{
+    if (a == NULL)
+        return;
+    free(a->ord);
+    sw_germ_clear(&a->gj);
+    sw_germ_clear(&a->gs);
+    free(a);
+}
+
+#define ANCHOR_MAX 0.25    /* an anchor covers at most a quarter of its segment */
+#define ANCHOR_CHECKS 6    /* points x_j 4^-k where the jump is checked before use */
+
+/* An anchor for the singular end BASE of the segment [BASE, BASE + DIR] when
+ * the expression's operands are simple there (operand_orders); NULL
+ * otherwise (then the line is tracked from next to the end, as before). */
+static anchor *anchor_new(ictx *c, double complex base, double complex dir)
+{
+    zmap m = {0, base, dir, 0, 0, 0, 0, 0, NULL, NULL};
+    anchor *a = calloc(1, sizeof *a);
+    if (a == NULL)
+        return NULL;
+    a->ord = calloc(c->nmv ? c->nmv : 1, sizeof *a->ord);
+    double reach = 0;
+    if (a->ord == NULL || sw_germ_init(&a->gj, c->f) != SW_OK ||
+        sw_germ_init(&a->gs, c->f) != SW_OK || operand_orders(c, &m, a->ord, &reach) != 0) {
+        anchor_free(a);
+        return NULL;
+    }
+    a->base = base;
+    a->dir = dir;
+    a->xj = fmin(ANCHOR_MAX, reach / 2);
+    return a;
+}
+
+/* The germ at xj from the germ G at xs (the branch fixed next to the end),
+ * checked at points in between as a tracker would be; 0 or -1. */
+static int anchor_from_start(ictx *c, anchor *a, const sw_germ *g)
+{
+    sw_germ_copy(&a->gs, g);
+    for (int k = ANCHOR_CHECKS; k >= 1; k--) {
+        double x = a->xj * pow(4.0, -k);
+        if (x > a->xs && anchor_jump(c, &c->h, a, &a->gs, x, 0.5) != 0)
+            return -1;
+    }
+    return anchor_jump(c, &a->gj, a, &a->gs, a->xj, 0.5);
+}
+
+/* The germ at xs from the tracked germ G at xj (the end of the path as
+ * reported). */
+static int anchor_from_line(ictx *c, anchor *a, const sw_germ *g)
+{
+    sw_germ_copy(&a->gj, g);
+    return anchor_jump(c, &a->gs, a, &a->gj, a->xs, 0.5);
 }
 
 /* Classify the end x = 0 of map M (the zone reaches at most X0).
@@ -2262,6 +2397,7 @@ typedef struct piece {
     sw_piece_kind kind;
     double complex a, b;   /* segment: ends; ray: a = finite end, b = unit direction out */
     int sing_a, sing_b;    /* singular finite ends */
+    anchor *anc_a, *anc_b; /* their anchors (NULL: none) */
     double L;              /* ray: length scale */
     size_t line0, nline;   /* tracked lines of this piece */
     /* circle */
@@ -2274,8 +2410,8 @@ typedef struct piece {
 static int integrate_segment(ictx *c, const piece *pc, int *all_ok, double *tol_share)
 {
     size_t ev0 = c->evals;
-    zmap ma = {0, pc->a, pc->b - pc->a, pc->line0, pc->nline, 0, 0, 0};
-    zmap mb = {0, pc->b, pc->a - pc->b, pc->line0, pc->nline, 0, 0, 0};
+    zmap ma = {0, pc->a, pc->b - pc->a, pc->line0, pc->nline, 0, 0, 0, pc->anc_a, pc->anc_b};
+    zmap mb = {0, pc->b, pc->a - pc->b, pc->line0, pc->nline, 0, 0, 0, pc->anc_b, pc->anc_a};
     double complex val = 0;
     double err = 0;
     int ok = 1;
@@ -2368,7 +2504,7 @@ done:
 static int integrate_ray(ictx *c, const piece *pc, int *all_ok, double *tol_share)
 {
     size_t ev0 = c->evals;
-    zmap m = {1, pc->a - pc->b * pc->L, pc->b * pc->L, pc->line0, pc->nline, 0, 0, 0};
+    zmap m = {1, pc->a - pc->b * pc->L, pc->b * pc->L, pc->line0, pc->nline, 0, 0, 0, NULL, NULL};
     endinfo ei;
     double complex val = 0;
     double err = 0;
@@ -2898,6 +3034,7 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
         /* tracking starts INSET from a singular end of the path; an engine
            that cannot step that close to a branch point (colliding roots of
            a curve) gets a start 1000 times farther, twice at most */
+        int use_anchors = c.expr && c.nmv > 0 && c.R == NULL;
         for (double boost = 1;; boost *= 1000) {
             int retry = boost < 1e6 && (stations[0].sing || stations[nst - 1].sing);
             for (size_t k = 0; k < c.nlines; k++) {
@@ -2905,6 +3042,10 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 sw_trace_clear(&c.lines[k].tr);
             }
             c.nlines = 0;
+            for (size_t k = 0; k < npc; k++) {
+                anchor_free(pcs[k].anc_a);
+                anchor_free(pcs[k].anc_b);
+            }
             npc = 0;
             memset(pcs, 0, (n + 4) * sizeof *pcs);
             /* pieces and their tracked lines, in path order */
@@ -2957,6 +3098,30 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 }
                 double complex zz[2] = {a + u * ia, b - u * ib};
                 int bk[2] = {sa->bank, sb->bank};
+                /* anchors at the path's singular ends (see anchor): the line
+                   is tracked only from xj on */
+                if (use_anchors && i == 0 && sa->sing && sa->bank == SW_BANK_NONE &&
+                    (p->anc_a = anchor_new(&c, a, b - a)) != NULL) {
+                    p->anc_a->xs = ia / cabs(b - a);
+                    if (p->anc_a->xj > 16 * p->anc_a->xs) {
+                        zz[0] = a + p->anc_a->xj * (b - a);
+                        ia = 0;
+                    } else {
+                        anchor_free(p->anc_a);
+                        p->anc_a = NULL;
+                    }
+                }
+                if (use_anchors && i + 2 == nst && sb->sing && sb->bank == SW_BANK_NONE &&
+                    (p->anc_b = anchor_new(&c, b, a - b)) != NULL) {
+                    p->anc_b->xs = ib / cabs(b - a);
+                    if (p->anc_b->xj > 16 * p->anc_b->xs) {
+                        zz[1] = b + p->anc_b->xj * (a - b);
+                        ib = 0;
+                    } else {
+                        anchor_free(p->anc_b);
+                        p->anc_b = NULL;
+                    }
+                }
                 if (i > 0 && sa->sing && c.nlines > 0) {
                     /* carry the branch past the marked singular point on a small
                        detour on the marked side */
@@ -2979,6 +3144,8 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 goto cleanup;
             }
             /* where the branch is fixed */
+            anchor *fixed_anchor = NULL;
+            double complex fixshown = 0; /* the point named in messages (0: fixz) */
             if (!sing[vertex]) {
                 fixz = path->z[vertex];
                 fixbank = path->bank[vertex];
@@ -3024,14 +3191,32 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 }
                 sw_trace_clear(&btr);
                 sw_path_clear(&bp);
+            } else if (sing[vertex] && (stations[0].vertex == (long)vertex ? pcs[0].anc_a
+                                                                               : pcs[npc - 1].anc_b)) {
+                /* the branch fixed next to an anchored end, carried to the
+                   anchor's line end in closed form */
+                fixed_anchor = stations[0].vertex == (long)vertex ? pcs[0].anc_a : pcs[npc - 1].anc_b;
+                double complex zs = fixed_anchor->base + fixed_anchor->xs * fixed_anchor->dir;
+                fixshown = zs;
+                st = sw_func_germ_at(&g0, f, zs, fixbank, w, err);
+                if (st == SW_OK) {
+                    if (anchor_from_start(&c, fixed_anchor, &g0) != 0) {
+                        use_anchors = 0; /* again, tracked from next to the end */
+                        boost /= 1000;
+                        continue;
+                    }
+                    sw_germ_copy(&g0, &fixed_anchor->gj);
+                }
             } else {
                 st = sw_func_germ_at(&g0, f, fixz, fixbank, w, err);
             }
             if (st == SW_ESINGULAR && retry)
                 continue;
             if (st != SW_OK) {
-                sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixz),
-                                cimag(fixz));
+                if (fixed_anchor == NULL)
+                    fixshown = fixz;
+                sw_error_prefix(err, "fixing the branch at z = %.10g%+.10gi", creal(fixshown),
+                                cimag(fixshown));
                 goto cleanup;
             }
             g0.z = fixz;
@@ -3052,6 +3237,22 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                 continue;
             if (st != SW_OK)
                 goto cleanup;
+            /* the other anchors take the germs the lines arrived with */
+            int bad = 0;
+            for (size_t k = 0; k < npc && !bad; k++) {
+                const piece *pk = &pcs[k];
+                if (pk->anc_a && pk->anc_a != fixed_anchor)
+                    bad = anchor_from_line(&c, pk->anc_a, &c.lines[pk->line0].tr.vert[0]) != 0;
+                if (pk->anc_b && pk->anc_b != fixed_anchor) {
+                    const tline *l = &c.lines[pk->line0 + pk->nline - 1];
+                    bad = bad || anchor_from_line(&c, pk->anc_b, &l->tr.vert[l->tr.nvert - 1]) != 0;
+                }
+            }
+            if (bad) {
+                use_anchors = 0;
+                boost /= 1000;
+                continue;
+            }
             break;
         }
     }
@@ -3101,10 +3302,14 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
         c.pieces = NULL;
         c.ends = NULL;
         const tline *l0 = &c.lines[0], *ln = &c.lines[c.nlines - 1];
-        res.start_z = l0->tr.vert[0].z;
-        res.start_w = sw_func_value(f, &l0->tr.vert[0]);
-        res.end_z = ln->tr.vert[ln->tr.nvert - 1].z;
-        res.end_w = sw_func_value(f, &ln->tr.vert[ln->tr.nvert - 1]);
+        /* anchored ends: the germs next to the end, as without anchors */
+        const sw_germ *gfirst = npc && pcs[0].anc_a ? &pcs[0].anc_a->gs : &l0->tr.vert[0];
+        const sw_germ *glast = npc && pcs[npc - 1].anc_b ? &pcs[npc - 1].anc_b->gs
+                                                         : &ln->tr.vert[ln->tr.nvert - 1];
+        res.start_z = gfirst->z;
+        res.start_w = sw_func_value(f, gfirst);
+        res.end_z = glast->z;
+        res.end_w = sw_func_value(f, glast);
         if (path->inf_start)
             res.start_w = CMPLX(NAN, NAN);
         if (path->inf_end)
@@ -3133,6 +3338,10 @@ cleanup:
         sw_trace_clear(&c.lines[k].tr);
     }
     free(c.lines);
+    for (size_t k = 0; pcs && k < npc; k++) {
+        anchor_free(pcs[k].anc_a);
+        anchor_free(pcs[k].anc_b);
+    }
     free(c.pieces);
     free(c.piece_l1);
     free(c.ld);
