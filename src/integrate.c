@@ -12,8 +12,14 @@
  * with s in (0, 1] (s = 0 is infinity).  An end where the integrand is
  * singular is analysed (analyze_end) by loops on a ladder of radii, which
  * give the local exponent exactly (mod 1/q) and the zone where the local
- * expansion holds; then a rule that samples only the smooth factor is used
- * (Gauss-Jacobi, Gauss-Laguerre for logarithms; QAWS and tanh-sinh as
+ * expansion holds; for expressions whose multivalued nodes take operands
+ * built from z alone, the turns of each operand are read from its order at
+ * the end (Laurent jets, operand_orders) and no loop is tracked.  At such an
+ * end of the path an anchor (anchor_jump) carries the branch in closed form
+ * inside the operands' disc, so the tracked line starts a quarter of the
+ * segment away.  Then a rule that samples only the smooth factor is used
+ * (Gauss-Jacobi; for x^alpha log x Gauss-Jacobi with product weights,
+ * Gauss-Laguerre for higher powers of logarithms; QAWS and tanh-sinh as
  * fallbacks).  Smooth pieces use GSL QAG on both parts of the complex
  * integrand through a cache, so each value is computed (and counted) once. */
 /* curve_internal.h brings FLINT's headers, which must precede <complex.h> */
@@ -1296,7 +1302,7 @@ static void anchor_free(anchor *a)
 }
 
 #define ANCHOR_MAX 0.25    /* an anchor covers at most a quarter of its segment */
-#define ANCHOR_CHECKS 6    /* points x_j 4^-k where the jump is checked before use */
+#define ANCHOR_CHECKS 3    /* points x_j 16^-k where the jump is checked before use */
 
 /* An anchor for the singular end BASE of the segment [BASE, BASE + DIR] when
  * the expression's operands are simple there (operand_orders); NULL
@@ -1326,7 +1332,7 @@ static int anchor_from_start(ictx *c, anchor *a, const sw_germ *g)
 {
     sw_germ_copy(&a->gs, g);
     for (int k = ANCHOR_CHECKS; k >= 1; k--) {
-        double x = a->xj * pow(4.0, -k);
+        double x = a->xj * pow(16.0, -k);
         if (x > a->xs && anchor_jump(c, &c->h, a, &a->gs, x, 0.5) != 0)
             return -1;
     }
@@ -1420,7 +1426,10 @@ static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei)
             if (j > 0)
                 memcpy(shift + (size_t)j * c->nmv, shift, c->nmv * sizeof *shift);
             shiftok[j] = 1;
-            if (r[j] > sreach)
+            /* F = x^alpha H(x) with H single-valued holds in the whole disc
+               once the two smallest radii agree: the larger ones are not
+               looked at, the reach is the disc's */
+            if (j < J - 1)
                 alive[j] = 0;
         }
     }
@@ -1488,6 +1497,13 @@ static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei)
             if (p > 0)
                 break;
         }
+    }
+    if (structural && (ei->kind == END_PURE || ei->kind == END_LOG)) {
+        /* as a loop at every radius inside the disc would have agreed */
+        ei->reach = X0;
+        for (int j = 0; j < nr; j++)
+            if (r[j] > sreach)
+                ei->reach = j + 1 < nr ? r[j + 1] : r[j];
     }
 numeric:
     {

@@ -26,9 +26,20 @@
  *     shrinks towards the end when it is not).  Each value H = F / x^alpha
  *     uses the local coordinate of the point where the germ actually is, so
  *     rounding of z0 + x dir next to an end z0 != 0 does not spoil it;
+ *     For expressions whose roots, powers and logs take operands built from
+ *     z alone (+ - * /, integer powers, exp, trigonometric and hyperbolic
+ *     functions), the turns are read from the orders of the operands' zeros
+ *     and poles at the end (truncated Laurent series) instead of loops, and
+ *     inside the disc where every operand keeps its leading behaviour the
+ *     branch follows in closed form from one tracked germ;
  *   - logarithmic ends of expressions, F = x^alpha P(log x) with P of degree
  *     <= 3 (coefficients analytic): recognised by shifting the logarithms of
- *     the operands by whole turns; integrated by Gauss-Laguerre in
+ *     the operands by whole turns; degree 1 with real alpha is integrated by
+ *     Gauss-Jacobi for x^alpha with product-integration weights for
+ *     x^alpha log x at the same nodes (modified moments in closed form;
+ *     P. J. Davis, P. Rabinowitz, Methods of Numerical Integration, 1984;
+ *     W. Gautschi, Orthogonal Polynomials, OUP 2004), orders 4, 8, 16, ...;
+ *     otherwise (or when that does not converge) by Gauss-Laguerre in
  *     u = (alpha + 1) log(X/x), where F x^-alpha is a polynomial in u plus
  *     decaying terms (GSL QAWS, weights x^alpha and x^alpha log x, as a
  *     fallback for degree 1);
