@@ -23,6 +23,7 @@
 #include <flint/fmpz_poly.h>
 #include <flint/fmpz_poly_factor.h>
 
+#include "curve_internal.h"
 #include "expr_internal.h"
 #include "func_internal.h"
 #include "sheetwalk/monodromy.h"
@@ -324,12 +325,10 @@ static int add_roots(cand_list *c, const cpoly *p)
         acb_poly_init(P);
         acb_poly_init(pr);
         acb_poly_init(pi);
-        slong found = 0, prec;
-        for (prec = 64; prec <= MAX_ROOT_PREC && found < d; prec *= 2) {
-            acb_poly_set_fmpz_poly(P, fac->p + f, prec);
-            found = acb_poly_find_roots(roots, P, NULL, 0, prec);
-        }
-        if (found < d) {
+        /* double-precision Aberth starting values refined and validated by Arb
+           (shared with the curve engine), precision raised only as needed */
+        slong prec = 256;
+        if (sw_poly_isolate_roots(roots, fac->p + f, MAX_ROOT_PREC, NULL) != SW_OK) {
             ok = 0;
         } else {
             acb_poly_set_fmpq_poly(pr, p->re, prec);
