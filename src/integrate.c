@@ -17,7 +17,12 @@
  * the end (Laurent jets, operand_orders) and no loop is tracked.  At such an
  * end of the path an anchor (anchor_jump) carries the branch in closed form
  * inside the operands' disc, so the tracked line starts a quarter of the
- * segment away.  Then a rule that samples only the smooth factor is used
+ * segment away (the whole segment but its last quarter when the operands
+ * are monomials in x, operands_monomial).  When the integrand itself is a
+ * product of such powers and one logarithm, its exponent and logarithm are
+ * read off the tree (tree_log_end) and no loop or sample is needed; a
+ * smooth factor of degree 1 at most starts the product rule at order 2
+ * (smooth_degree).  Then a rule that samples only the smooth factor is used
  * (Gauss-Jacobi; for x^alpha log x Gauss-Jacobi with product weights,
  * Gauss-Laguerre for higher powers of logarithms; QAWS and tanh-sinh as
  * fallbacks).  Smooth pieces use GSL QAG on both parts of the complex
@@ -140,6 +145,8 @@ typedef struct anchor {
     long *ord;                /* n_k */
     sw_germ gj;               /* the tracked germ at xj */
     sw_germ gs;               /* the germ at xs (reported as the path's end) */
+    int whole;                /* every v_k is constant (operands_monomial): the jump
+                                 holds on the whole segment */
 } anchor;
 
 typedef struct zmap {
@@ -1251,6 +1258,123 @@ done:
     return rc;
 }
 
+/* Expressions on a segment: when F = C x^alpha P(x) (log x + c0) or
+ * C x^alpha P(x) exactly, with P a polynomial, a bound on the degree of P;
+ * -1 when the tree does not show that form.  Read from the tree alone:
+ * every multivalued operand is a monomial in x (constants and z, with the
+ * end at z = 0, under products, quotients and integer powers), multivalued
+ * nodes enter only through products, quotients by powers and integer powers
+ * of powers, at most one logarithm, and everything else is a polynomial in z
+ * (degree bound: z 1, sums max, products sum).  Then A and B of the product
+ * rule are polynomials of that degree and the rule of order n is exact for
+ * degree n - 1 (see log_weights). */
+static int smooth_degree(const ictx *c, const zmap *m)
+{
+    if (!c->expr || c->nmv == 0 || c->R != NULL || m->inf)
+        return -1;
+    const sw_expr *e = sw_func_expr(c->f);
+    if (e->n == 0 || e->n > 64)
+        return -1;
+    int deg[64], logs[64];
+    char dep[64], mono[64];
+    for (size_t k = 0; k < e->n; k++) {
+        const sw_node *nd = &e->node[k];
+        int a = nd->a, b = nd->b;
+        dep[k] = (char)(nd->mv >= 0 || (a >= 0 && dep[a]) || (b >= 0 && dep[b]));
+        logs[k] = 0;
+        mono[k] = 0;
+        if (nd->mv >= 0) {
+            if ((nd->kind != N_POW && nd->kind != N_LOG) || a < 0 || dep[a] || !mono[a])
+                return -1;
+            deg[k] = 0;
+            logs[k] = nd->kind == N_LOG;
+            continue;
+        }
+        if (!dep[k]) {
+            switch (nd->kind) {
+            case N_CONST: deg[k] = 0; mono[k] = 1; break;
+            case N_Z: deg[k] = 1; mono[k] = m->base == 0; break;
+            case N_ADD: case N_SUB: deg[k] = deg[a] > deg[b] ? deg[a] : deg[b]; break;
+            case N_MUL: deg[k] = deg[a] + deg[b]; mono[k] = mono[a] && mono[b]; break;
+            case N_DIV:
+                /* a quotient is a polynomial only by a constant; monomials
+                   stay monomials (as multivalued operands) */
+                mono[k] = mono[a] && mono[b];
+                deg[k] = deg[b] == 0 ? deg[a] : 64;
+                break;
+            case N_NEG: deg[k] = deg[a]; mono[k] = mono[a]; break;
+            case N_POWI:
+                mono[k] = mono[a];
+                deg[k] = nd->k >= 0 && nd->k <= 64 ? (int)nd->k * deg[a]
+                                                   : deg[a] == 0 ? 0 : 64;
+                break;
+            default: return -1;
+            }
+            if (deg[k] > 64)
+                deg[k] = 64;
+            continue;
+        }
+        /* above a multivalued node */
+        switch (nd->kind) {
+        case N_MUL:
+            deg[k] = deg[a] + deg[b];
+            logs[k] = logs[a] + logs[b];
+            break;
+        case N_DIV:
+            if (deg[b] != 0 || logs[b] != 0)
+                return -1;
+            deg[k] = deg[a];
+            logs[k] = logs[a];
+            break;
+        case N_NEG: deg[k] = deg[a]; logs[k] = logs[a]; break;
+        case N_POWI:
+            if (logs[a] != 0 || deg[a] != 0)
+                return -1;
+            deg[k] = 0;
+            break;
+        default: return -1;
+        }
+        if (deg[k] > 64 || logs[k] > 1)
+            return -1;
+    }
+    return deg[e->n - 1] < 64 ? deg[e->n - 1] : -1;
+}
+
+/* Expressions: every multivalued operand is built from nonzero constants
+ * and z by products, quotients and integer powers, and the end BASE is
+ * z = 0: each operand is c x^(n_k) exactly on a segment from there (the jets
+ * of operand_orders are then not truncated).  1 or 0. */
+static int operands_monomial(const ictx *c, double complex base)
+{
+    if (!c->expr || c->nmv == 0 || base != 0)
+        return 0;
+    const sw_expr *e = sw_func_expr(c->f);
+    if (e->n == 0 || e->n > 64)
+        return 0;
+    char dep[64], mono[64];
+    for (size_t k = 0; k < e->n; k++) {
+        const sw_node *nd = &e->node[k];
+        int a = nd->a, b = nd->b;
+        dep[k] = (char)(nd->mv >= 0 || (a >= 0 && dep[a]) || (b >= 0 && dep[b]));
+        mono[k] = 0;
+        if (nd->mv >= 0) {
+            if (a < 0 || dep[a] || !mono[a])
+                return 0;
+            continue;
+        }
+        if (dep[k])
+            continue;
+        switch (nd->kind) {
+        case N_CONST: mono[k] = nd->c != 0 && finite_c(nd->c); break;
+        case N_Z: mono[k] = 1; break;
+        case N_MUL: case N_DIV: mono[k] = mono[a] && mono[b]; break;
+        case N_NEG: case N_POWI: mono[k] = mono[a]; break;
+        default: break;
+        }
+    }
+    return 1;
+}
+
 /* The germ at X in (0, xj] of anchor A from the germ IN at another point of
  * its disc: L_k(x) = Log u_k(x) + 2 pi i m_k with m_k the integer nearest to
  * the continuation Im L_k(in) + Arg(v_k(x) / v_k(x_in)), v_k = u_k / x^(n_k)
@@ -1323,6 +1447,7 @@ static anchor *anchor_new(ictx *c, double complex base, double complex dir)
     a->base = base;
     a->dir = dir;
     a->xj = fmin(ANCHOR_MAX, reach / 2);
+    a->whole = reach == INFINITY && operands_monomial(c, base);
     return a;
 }
 
@@ -1331,7 +1456,8 @@ static anchor *anchor_new(ictx *c, double complex base, double complex dir)
 static int anchor_from_start(ictx *c, anchor *a, const sw_germ *g)
 {
     sw_germ_copy(&a->gs, g);
-    for (int k = ANCHOR_CHECKS; k >= 1; k--) {
+    /* (monomial operands: the jump is exact, nothing to check) */
+    for (int k = a->whole ? 0 : ANCHOR_CHECKS; k >= 1; k--) {
         double x = a->xj * pow(16.0, -k);
         if (x > a->xs && anchor_jump(c, &c->h, a, &a->gs, x, 0.5) != 0)
             return -1;
@@ -1356,9 +1482,100 @@ static int anchor_from_line(ictx *c, anchor *a, const sw_germ *g)
  * the local expansion holds (another singular point lies beyond it). */
 static int analyze_end_body(ictx *c, const zmap *m, double X0, endinfo *ei);
 
+/* Expressions on a segment whose end is z = 0, built by products,
+ * quotients and integer powers (no sums) from nonzero constants, z, powers
+ * with real constant exponents and one logarithm, each multivalued operand
+ * again such a product of z and constants with nonzero order n_k at the end:
+ * then F = C x^alpha (n log x + c0) exactly, with alpha and the turns n_k
+ * read off the tree (exponents add under products), and the end needs no
+ * numerical analysis.  1 when EI was filled (a logarithmic end of degree 1,
+ * the expansion holding on the whole zone), 0 when the tree is not of that
+ * form, -1 on failure. */
+static int tree_log_end(ictx *c, const zmap *m, double X0, endinfo *ei)
+{
+    if (!c->expr || c->nmv == 0 || c->R != NULL || m->inf || m->base != 0)
+        return 0;
+    const sw_expr *e = sw_func_expr(c->f);
+    if (e->n == 0 || e->n > 64)
+        return 0;
+    double ex[64];
+    int logs[64];
+    char dep[64];
+    long ord[64];
+    for (size_t k = 0; k < e->n; k++) {
+        const sw_node *nd = &e->node[k];
+        int a = nd->a, b = nd->b;
+        dep[k] = (char)(nd->mv >= 0 || (a >= 0 && dep[a]) || (b >= 0 && dep[b]));
+        logs[k] = 0;
+        if (nd->mv >= 0) {
+            if (nd->mv >= 64 || a < 0 || dep[a] || ex[a] == 0 || ex[a] != nearbyint(ex[a]))
+                return 0;
+            ord[nd->mv] = (long)ex[a];
+            if (nd->kind == N_LOG) {
+                ex[k] = 0;
+                logs[k] = 1;
+            } else if (nd->kind == N_POW && cimag(nd->c) == 0) {
+                ex[k] = creal(nd->c) * ex[a];
+            } else {
+                return 0;
+            }
+            continue;
+        }
+        switch (nd->kind) {
+        case N_CONST:
+            if (nd->c == 0 || !finite_c(nd->c))
+                return 0;
+            ex[k] = 0;
+            break;
+        case N_Z: ex[k] = 1; break;
+        case N_MUL:
+            ex[k] = ex[a] + ex[b];
+            logs[k] = logs[a] + logs[b];
+            break;
+        case N_DIV:
+            if (logs[b] != 0)
+                return 0;
+            ex[k] = ex[a] - ex[b];
+            logs[k] = logs[a];
+            break;
+        case N_NEG: ex[k] = ex[a]; logs[k] = logs[a]; break;
+        case N_POWI:
+            if (logs[a] != 0)
+                return 0;
+            ex[k] = (double)nd->k * ex[a];
+            break;
+        default: return 0;
+        }
+        if (logs[k] > 1)
+            return 0;
+    }
+    size_t root = e->n - 1;
+    if (logs[root] != 1 || (size_t)c->nmv > 64 || !isfinite(ex[root]))
+        return 0;
+    memset(ei, 0, sizeof *ei);
+    ei->shift = malloc(c->nmv * sizeof *ei->shift);
+    if (ei->shift == NULL) {
+        fail(c, SW_ENOMEM, "out of memory");
+        return -1;
+    }
+    memcpy(ei->shift, ord, c->nmv * sizeof *ei->shift);
+    ei->kind = END_LOG;
+    ei->q = 1;
+    ei->logdeg = 1;
+    ei->alpha = ex[root];
+    ei->alpha_num = ex[root];
+    ei->mu = cexp(CMPLX(0.0, 2 * PI * ex[root]));
+    ei->exact = 1;
+    ei->reach = X0;
+    return 1;
+}
+
 /* (the analysis keeps real germs: no quick roots) */
 static int analyze_end(ictx *c, const zmap *m, double X0, endinfo *ei)
 {
+    int t = tree_log_end(c, m, X0, ei);
+    if (t != 0)
+        return t > 0 ? 0 : -1;
     int q = c->quick;
     c->quick = 0;
     int rc = analyze_end_body(c, m, X0, ei);
@@ -2045,19 +2262,24 @@ static int gjl_rule(ictx *c, const zmap *m, const endinfo *ei, double X, int n,
     return 0;
 }
 
-/* Orders 4, 8, 16, ... as gj_c, with the same error estimate. */
+/* Orders 4, 8, 16, ... (2, 4, ... when smooth_degree shows A and B of
+ * degree 1 at most) as gj_c, with the same error estimate. */
 static int gjl_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol_abs,
                  double complex *Iv, double *err, int *ok)
 {
     double complex prev = 0, cur = 0;
     double asum = 0, rnd = 0, dprev = INFINITY;
     *ok = 0;
-    static const int orders[] = {4, 8, 16, 24, 32, 48, 64};
-    for (size_t io = 0; io < sizeof orders / sizeof orders[0]; io++) {
+    /* a rule of order 2 is exact when A and B are of degree 1 at most: then
+       2 and 4 (which confirms it) instead of 4 and 8 */
+    static const int orders[] = {2, 4, 8, 16, 24, 32, 48, 64};
+    int deg = smooth_degree(c, m);
+    size_t first = deg >= 0 && deg <= 1 ? 0 : 1;
+    for (size_t io = first; io < sizeof orders / sizeof orders[0]; io++) {
         int n = orders[io];
         if (gjl_rule(c, m, ei, X, n, &cur, &asum, &rnd) != 0)
             return -1;
-        if (io > 0) {
+        if (io > first) {
             double d = cabs(cur - prev);
             double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
             e += 50 * EPS * asum;
@@ -2727,6 +2949,20 @@ static int add_line(ictx *c, const double complex *z, const int *bank, size_t n,
 static int point_singular(ictx *c, double complex z, int bank)
 {
     sw_error e;
+    if (c->expr && bank == SW_BANK_NONE) {
+        /* an operand zero or not finite at z: what sw_func_germ_at refuses,
+           without formatting its message */
+        const sw_expr *ex = sw_func_expr(c->f);
+        double complex stackbuf[256], v;
+        double complex *vals = ex->n <= 256 ? stackbuf : malloc(ex->n * sizeof *vals);
+        if (vals == NULL)
+            return 1;
+        int r = sw_expr_principal_state(&v, c->g.s, ex, z, 0, vals);
+        if (vals != stackbuf)
+            free(vals);
+        if (r != -1)
+            return 1;
+    }
     if (sw_func_germ_at(&c->g, c->f, z, bank, NULL, &e) != SW_OK)
         return 1;
     double complex w = sw_func_value(c->f, &c->g);
@@ -3137,6 +3373,13 @@ sw_status sw_integrate_path(sw_integral *out, const sw_func *f, const sw_expr *i
                         anchor_free(p->anc_b);
                         p->anc_b = NULL;
                     }
+                }
+                if (p->anc_a && p->anc_a->whole && !sb->sing) {
+                    /* operands that are monomials at the end: the closed form
+                       covers the segment but for the quarter next to its
+                       other (regular) end, which is tracked */
+                    p->anc_a->xj = 1 - ANCHOR_MAX;
+                    zz[0] = a + p->anc_a->xj * (b - a);
                 }
                 if (i > 0 && sa->sing && c.nlines > 0) {
                     /* carry the branch past the marked singular point on a small

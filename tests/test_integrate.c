@@ -290,6 +290,31 @@ static void test_log_ends(void **state)
         assert_int_equal(y.r.end[0].rule, SW_RULE_JACOBI_LOG);
         sw_integral_clear(&y.r);
     }
+    /* ends whose exponent and logarithm are read off the tree (products,
+       quotients and integer powers of z and constants): int_0^X t^(a-1)
+       (log t + c) dt = X^a ((log X + c) / a - 1 / a^2) (DLMF 5.12.1
+       differentiated in a, scaled to [0, X]) */
+    {
+        static const struct {
+            const char *f, *path;
+            double a, X, c, fac;
+        } tc[] = {
+            {"log(z)/sqrt(z)", "0; 1", 0.5, 1, 0, 1},
+            {"log(z)/sqrt(z)", "0; 4", 0.5, 4, 0, 1},
+            /* sqrt(2) x^(3/2) (log 3 + log x) */
+            {"log(3*z)*z^2/sqrt(z/2)", "0; 1", 2.5, 1, 1.0986122886681098, 1.4142135623730951},
+            {"-z*log(z)/z^(1/3)", "0; 2", 5.0 / 3, 2, 0, -1},
+        };
+        for (size_t k = 0; k < sizeof tc / sizeof tc[0]; k++) {
+            double a = tc[k].a, X = tc[k].X;
+            double want = tc[k].fac * pow(X, a) * ((log(X) + tc[k].c) / a - 1 / (a * a));
+            ires y = integ(tc[k].f, 0, NULL, tc[k].path, 0, NULL);
+            check_value(&y, want, tc[k].f, "DLMF 5.12.1 differentiated in a");
+            assert_int_equal(y.r.end[0].logarithmic, 1);
+            assert_int_equal(y.r.end[0].rule, SW_RULE_JACOBI_LOG);
+            sw_integral_clear(&y.r);
+        }
+    }
     ires x = integ("log(1-z)/z", 0, NULL, "0; 1", 0, NULL);
     check_value(&x, -gsl_sf_dilog(1.0), "int_0^1 log(1-z)/z dz", "DLMF 25.12.2, gsl_sf_dilog");
     sw_integral_clear(&x.r);
