@@ -239,6 +239,31 @@ static double target(const ictx *c, double tol_abs, double mag, double l1)
     return fmax(fmax(tol_abs, fmax(c->o->aim * c->o->epsrel, 100 * EPS) * mag), 100 * EPS * l1);
 }
 
+/* Accept the newest of a sequence of fixed rules of growing order?  H, the
+ * smooth factor, is analytic near the interval, so the error of the rules
+ * falls geometrically: with the differences d and dprev of the last two
+ * pairs of rules (d about the error of the older rule), the newer rule's
+ * error is at most about d^2 / dprev when the order grows by at least as much
+ * as in the pair before; a factor 10 of safety, and never more than d.  The
+ * reported error adds the rounding RND of the integrand's values next to the
+ * singular end (which more nodes do not reduce).  Returns 1 when converged or
+ * down to that rounding (more nodes cannot help); *DPREV is updated. */
+static int rule_converged(ictx *c, double complex cur, double complex prev, double *dprev,
+                          double asum, double rnd, double tol_abs, double complex *Iv,
+                          double *err)
+{
+    double d = cabs(cur - prev);
+    double e = isfinite(*dprev) && *dprev > 0 ? fmin(d, 10 * d * d / *dprev) : d;
+    e += 50 * EPS * asum;
+    double tol = target(c, tol_abs, cabs(cur), asum);
+    c->l1 = asum;
+    *Iv = cur;
+    *err = e + rnd;
+    *dprev = d;
+    return e <= fmax(tol, 2 * rnd);
+}
+
+
 static int finite_c(double complex v) { return isfinite(creal(v)) && isfinite(cimag(v)); }
 
 static sw_status fail(ictx *c, sw_status code, const char *msg)
@@ -2017,29 +2042,10 @@ static int gj_c(ictx *c, const zmap *m, const zmap *mb, double X, int q, double 
         int n = orders[io];
         if (gj_rule(c, m, mb, X, q, alpha, beta, n, &cur, &asum, &rnd) != 0)
             return -1;
-        if (n > GJ_FIRST) {
-            /* H is analytic near [0, X]: the error of the rule falls
-               geometrically in n; with differences d, dprev of the last two
-               pairs of rules (d about the error of the older rule), the
-               newer rule's error is at most about d^2 / dprev when the order
-               grows by at least as much as in the pair before (as here); a
-               factor 10 of safety, and never more than d itself */
-            double d = cabs(cur - prev);
-            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
-            e += 50 * EPS * asum;
-            double tol = target(c, tol_abs, cabs(cur), asum);
-            c->l1 = asum;
-            *Iv = cur;
-            /* the rule's error, and the rounding of the integrand's values
-               next to the singular end (not reduced by more nodes) */
-            *err = e + rnd;
-            /* converged, or down to the rounding of the values: more nodes
-               cannot help (and shrinking the zone only adds rounding) */
-            if (e <= fmax(tol, 2 * rnd)) {
-                *ok = 1;
-                return 0;
-            }
-            dprev = d;
+        if (n > GJ_FIRST &&
+            rule_converged(c, cur, prev, &dprev, asum, rnd, tol_abs, Iv, err)) {
+            *ok = 1;
+            return 0;
         }
         prev = cur;
     }
@@ -2199,19 +2205,9 @@ static int lag_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol
     for (int n = 8; n <= 32; n *= 2) {
         if (lag_rule(c, m, ei, X, n, &cur, &asum, &rnd) != 0)
             return -1;
-        if (n > 8) {
-            double d = cabs(cur - prev);
-            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
-            e += 50 * EPS * asum;
-            double tol = target(c, tol_abs, cabs(cur), asum);
-            c->l1 = asum;
-            *Iv = cur;
-            *err = e + rnd;
-            if (e <= fmax(tol, 2 * rnd)) {
-                *ok = 1;
-                return 0;
-            }
-            dprev = d;
+        if (n > 8 && rule_converged(c, cur, prev, &dprev, asum, rnd, tol_abs, Iv, err)) {
+            *ok = 1;
+            return 0;
         }
         prev = cur;
     }
@@ -2279,19 +2275,9 @@ static int gjl_c(ictx *c, const zmap *m, const endinfo *ei, double X, double tol
         int n = orders[io];
         if (gjl_rule(c, m, ei, X, n, &cur, &asum, &rnd) != 0)
             return -1;
-        if (io > first) {
-            double d = cabs(cur - prev);
-            double e = isfinite(dprev) && dprev > 0 ? fmin(d, 10 * d * d / dprev) : d;
-            e += 50 * EPS * asum;
-            double tol = target(c, tol_abs, cabs(cur), asum);
-            c->l1 = asum;
-            *Iv = cur;
-            *err = e + rnd;
-            if (e <= fmax(tol, 2 * rnd)) {
-                *ok = 1;
-                return 0;
-            }
-            dprev = d;
+        if (io > first && rule_converged(c, cur, prev, &dprev, asum, rnd, tol_abs, Iv, err)) {
+            *ok = 1;
+            return 0;
         }
         prev = cur;
     }
