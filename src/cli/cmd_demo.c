@@ -20,6 +20,11 @@ static const char help[] =
     "both thresholds.  Every number is computed by the library as you watch.\n";
 
 static const char *const FUNC = "sqrt(1 - 1/z) * sqrt(1 - 4/z)";
+
+/* Human text goes to OUT (stdout, or nowhere with --json); with --json the
+ * numbers are collected in DOC instead. */
+static FILE *OUT;
+static json_t *DOC;
 static const double M_PI_VALUE = 3.14159265358979323846;
 
 /* Sign of Im q, with the +i0 limit on the real axis above threshold. */
@@ -56,6 +61,7 @@ static int show_path(walk *out, const sw_func *f, const char *title, const char 
     sw_trace tr;
     sw_trace_init(&tr);
     int rc = 0;
+    json_t *rows = NULL;
     if (sw_path_parse(&p, spec, "path", NULL, &err) != SW_OK || sw_germ_init(&g, f) != SW_OK ||
         sw_germ_init(&h, f) != SW_OK) {
         fprintf(stderr, "sheetwalk: demo: %s\n", err.msg);
@@ -69,9 +75,10 @@ static int show_path(walk *out, const sw_func *f, const char *title, const char 
         rc = sw_status_exit_code(err.code);
         goto cleanup;
     }
-    printf("\n%s\n", title);
-    printf("   path: %s\n%s\n", spec, story);
-    printf("   %-30s %-32s %-32s %s\n", "s", "q1", "q2", "sheet (Im q1, Im q2)");
+    rows = DOC ? json_array() : NULL;
+    fprintf(OUT, "\n%s\n", title);
+    fprintf(OUT, "   path: %s\n%s\n", spec, story);
+    fprintf(OUT, "   %-30s %-32s %-32s %s\n", "s", "q1", "q2", "sheet (Im q1, Im q2)");
     size_t nseg = sw_path_segments(&p);
     for (size_t k = 0; k <= nseg; k++) {
         /* vertices, and the middle of each segment of a polygon with few sides */
@@ -92,7 +99,20 @@ static int show_path(walk *out, const sw_func *f, const char *title, const char 
             snprintf(zb, sizeof zb, "%s%s", cfmt(a, sizeof a, sw_path_point(&p, t)),
                      half == 0 && p.bank[k] > 0 ? "+i0" : "");
             char l1 = sign_of(q[0], h.z), l2 = sign_of(q[1], h.z);
-            printf("   %-30s %-32s %-32s (%c,%c)%s\n", zb, cfmt(b, sizeof b, q[0]),
+            if (rows) {
+                json_t *row = json_object();
+                char lab[8];
+                snprintf(lab, sizeof lab, "%c,%c", l1, l2);
+                json_object_set_new(row, "s", json_cplx(sw_path_point(&p, t)));
+                if (half == 0 && p.bank[k] != SW_BANK_NONE)
+                    json_object_set_new(row, "bank",
+                                        json_string(p.bank[k] > 0 ? "+i0" : "-i0"));
+                json_object_set_new(row, "q1", json_cplx(q[0]));
+                json_object_set_new(row, "q2", json_cplx(q[1]));
+                json_object_set_new(row, "sheet", json_string(lab));
+                json_array_append_new(rows, row);
+            }
+            fprintf(OUT, "   %-30s %-32s %-32s (%c,%c)%s\n", zb, cfmt(b, sizeof b, q[0]),
                    cfmt(c, sizeof c, q[1]), l1, l2, l1 == '+' && l2 == '+' ? " physical" : "");
             size_t slot = loop && k == nseg ? 7 : k;
             if (half == 0 && slot < 8) {
@@ -104,9 +124,19 @@ static int show_path(walk *out, const sw_func *f, const char *title, const char 
         }
     }
     out->ratio = sw_func_value(f, &tr.vert[nseg]) / sw_func_value(f, &tr.vert[0]);
-    printf("   (%zu steps, none refused by a branch point; uncertified double precision)\n",
+    if (rows) {
+        json_t *sec = json_object();
+        json_object_set_new(sec, "path", json_string(spec));
+        json_object_set_new(sec, "steps", json_integer((json_int_t)tr.steps));
+        json_object_set_new(sec, "points", rows);
+        json_object_set_new(sec, "product_ratio", json_cplx(out->ratio));
+        json_object_set_new(DOC, loop ? "loop" : "continuation", sec);
+        rows = NULL;
+    }
+    fprintf(OUT, "   (%zu steps, none refused by a branch point; uncertified double precision)\n",
            tr.steps);
 cleanup:
+    json_decref(rows);
     sw_trace_clear(&tr);
     sw_germ_clear(&g);
     sw_germ_clear(&h);
@@ -122,6 +152,7 @@ static int audit_section(void)
 {
     static const char *const formula = "sqrt(z*(z-4))/z";
     static const char *const spec = "0.5+i0; 6+i0";
+    json_t *aj = NULL, *jl = NULL;
     sw_error err;
     sw_func *f = NULL;
     sw_path p;
@@ -149,17 +180,32 @@ static int audit_section(void)
         rc = sw_status_exit_code(err.code);
         goto cleanup;
     }
-    printf("\n4. The same factor as it is often typed, rho2 = %s, evaluated the way\n"
+    fprintf(OUT, "\n4. The same factor as it is often typed, rho2 = %s, evaluated the way\n"
            "   C's csqrt does it, along the upper bank %s:\n", formula, spec);
+    aj = DOC ? json_object() : NULL;
+    jl = DOC ? json_array() : NULL;
+    if (aj) {
+        json_object_set_new(aj, "formula", json_string(formula));
+        json_object_set_new(aj, "path", json_string(spec));
+    }
     if (a.njumps == 0)
-        printf("   no discontinuity found.\n");
+        fprintf(OUT, "   no discontinuity found.\n");
     for (size_t k = 0; k < a.njumps; k++) {
         const sw_audit_jump *j = &a.jump[k];
         char b1[64], b2[64], b3[64], why[512];
-        printf("   jump at s = %s (path parameter %.12g): after/before = %s\n",
+        fprintf(OUT, "   jump at s = %s (path parameter %.12g): after/before = %s\n",
                cfmt(b1, sizeof b1, j->z), j->t, cfmt(b2, sizeof b2, j->ratio));
-        printf("   %s\n", sw_audit_explain(why, sizeof why, f, j));
-        printf("   formula / continued value: %s before, %s after\n",
+        fprintf(OUT, "   %s\n", sw_audit_explain(why, sizeof why, f, j));
+        if (jl) {
+            json_t *jo = json_object();
+            json_object_set_new(jo, "z", json_cplx(j->z));
+            json_object_set_new(jo, "t", json_real(j->t));
+            json_object_set_new(jo, "ratio", json_cplx(j->ratio));
+            json_object_set_new(jo, "difference", json_cplx(j->difference));
+            json_object_set_new(jo, "explanation", json_string(why));
+            json_array_append_new(jl, jo);
+        }
+        fprintf(OUT, "   formula / continued value: %s before, %s after\n",
                cfmt(b2, sizeof b2, j->rel_before), cfmt(b3, sizeof b3, j->rel_after));
     }
     /* compare with the physical factor sqrt(1 - 4/s) at s + i0 on both sides */
@@ -176,7 +222,7 @@ static int audit_section(void)
                 if (sw_func_germ_at(&h, phys, at[k], SW_BANK_UPPER, NULL, &err) != SW_OK)
                     break;
                 double complex good = sw_func_value(phys, &h);
-                printf("   at s = %g+i0: typed formula %s, physical sqrt(1 - 4/s) %s%s\n", at[k],
+                fprintf(OUT, "   at s = %g+i0: typed formula %s, physical sqrt(1 - 4/s) %s%s\n", at[k],
                        cfmt(b1, sizeof b1, typed), cfmt(b2, sizeof b2, good),
                        cabs(typed - good) < 1e-9 * cabs(good) ? "  (agree)" : "  (wrong sign)");
             }
@@ -184,10 +230,17 @@ static int audit_section(void)
         }
         sw_func_free(phys);
     }
-    printf("   The single root hides a sign flip at s = 2, half-way between the thresholds;\n"
+    if (aj) {
+        json_object_set_new(aj, "discontinuities", jl);
+        json_object_set_new(DOC, "audit", aj);
+        jl = aj = NULL;
+    }
+    fprintf(OUT, "   The single root hides a sign flip at s = 2, half-way between the thresholds;\n"
            "   the factor written as sqrt(1 - 4/s) has none along the bank.  (A numerical\n"
            "   audit in double precision; see 'sheetwalk audit --help'.)\n");
 cleanup:
+    json_decref(jl);
+    json_decref(aj);
     sw_audit_clear(&a);
     sw_trace_clear(&tr);
     if (have_g)
@@ -236,21 +289,34 @@ static int integral_section(void)
        = pi ((a+b)/2 - p + sgn(p - b) sqrt((p-a)(p-b))) for real p outside [a, b] */
     double i0 = M_PI_VALUE * (2.5 - 0.0 - 2.0), i6 = M_PI_VALUE * (2.5 - 6.0 + sqrt(10.0));
     double exact = (i6 - i0) / 6.0;
-    printf("\n5. A dispersion-type integral over the cut between the thresholds: the upper\n"
+    fprintf(OUT, "\n5. A dispersion-type integral over the cut between the thresholds: the upper\n"
            "   bank of %s from s = 1 to s = 4, with the cut [1, 4]\n"
            "   and the branch that is real and negative at s = 5, computed two ways:\n", fn);
-    printf("   direct quadrature on the bank   %s  (estimated error %.2g)\n",
+    fprintf(OUT, "   direct quadrature on the bank   %s  (estimated error %.2g)\n",
            cfmt(b1, sizeof b1, r.direct.value), r.direct.abserr);
     if (r.contour_applies)
-        printf("   loop around the cut / (jump-1)  %s  (jump %s)\n",
+        fprintf(OUT, "   loop around the cut / (jump-1)  %s  (jump %s)\n",
                cfmt(b2, sizeof b2, r.contour), cfmt(b1, sizeof b1, r.lambda));
     else
-        printf("   contour method: %s\n", r.note);
-    printf("   relative difference             %.2g\n", r.agreement);
-    printf("   closed form                     %s  (pi((a+b)/2 - p +- sqrt((p-a)(p-b))),\n"
+        fprintf(OUT, "   contour method: %s\n", r.note);
+    fprintf(OUT, "   relative difference             %.2g\n", r.agreement);
+    fprintf(OUT, "   closed form                     %s  (pi((a+b)/2 - p +- sqrt((p-a)(p-b))),\n"
            "                                   partial fractions; common practice)\n",
            cfmt(b1, sizeof b1, CMPLX(0.0, exact)));
-    printf("   Both are numerical (quadrature, not a proof); their agreement is the check.\n");
+    fprintf(OUT, "   Both are numerical (quadrature, not a proof); their agreement is the check.\n");
+    if (DOC) {
+        json_t *o = json_object();
+        json_object_set_new(o, "function", json_string(fn));
+        json_object_set_new(o, "bank", json_string("[1, 4] +i0"));
+        json_object_set_new(o, "direct", json_cplx(r.direct.value));
+        json_object_set_new(o, "abserr", json_real(r.direct.abserr));
+        json_object_set_new(o, "contour", r.contour_applies ? json_cplx(r.contour) : json_null());
+        json_object_set_new(o, "agreement", r.contour_applies ? json_real(r.agreement)
+                                                              : json_null());
+        json_object_set_new(o, "jump", json_cplx(r.lambda));
+        json_object_set_new(o, "closed_form", json_cplx(CMPLX(0.0, exact)));
+        json_object_set_new(DOC, "integral", o);
+    }
 cleanup:
     sw_bank_integral_clear(&r);
     sw_branch_free(b);
@@ -279,16 +345,23 @@ int cmd_demo(int argc, char **argv)
         rc = cli_fail(&c, &err);
         goto cleanup;
     }
+    OUT = stdout;
+    DOC = NULL;
     if (c.json) {
-        json_t *d = cli_doc(&c);
-        json_object_set_new(d, "function", json_string(FUNC));
+        OUT = fopen("/dev/null", "w");
+        if (OUT == NULL) {
+            sw_error_set(&err, SW_EINTERNAL, "cannot open /dev/null");
+            rc = cli_fail(&c, &err);
+            goto cleanup;
+        }
+        DOC = cli_doc(&c);
+        json_object_set_new(DOC, "function", json_string(FUNC));
         json_t *pj = cli_points_json(&pts, f);
-        json_object_update(d, pj);
+        json_object_update(DOC, pj);
         json_decref(pj);
-        cli_emit(d);
-        goto cleanup;
+        json_object_set_new(DOC, "certified", json_false());
     }
-    printf("sheetwalk demo: a two-channel amplitude, continued across its cuts\n"
+    fprintf(OUT, "sheetwalk demo: a two-channel amplitude, continued across its cuts\n"
            "==================================================================\n"
            "A toy amplitude in units of a mass scale has channel thresholds at s = 1 and\n"
            "s = 4.  Its phase-space factors are rho_k(s) = sqrt(1 - t_k/s) and the channel\n"
@@ -296,20 +369,20 @@ int cmd_demo(int argc, char **argv)
            "Im q1 and Im q2; (+,+) is the physical sheet.  The physical region is the\n"
            "real axis above threshold approached from above, s + i0.\n\n"
            "1. Where does rho1 rho2 = %s branch?\n", FUNC);
-    cli_points_table(stdout, &pts, f);
-    printf("   Each threshold flips the sign of its factor (multiplier -1); s = 0, where\n"
+    cli_points_table(OUT, &pts, f);
+    fprintf(OUT, "   Each threshold flips the sign of its factor (multiplier -1); s = 0, where\n"
            "   both operands have a pole, is not a branch point of the product, and\n"
            "   neither is infinity.\n");
     walk w1, w2;
     memset(&w1, 0, sizeof w1);
     memset(&w2, 0, sizeof w2);
-    printf("\n   On the real axis a label refers to the continued values pushed to s + i0.\n");
+    fprintf(OUT, "\n   On the real axis a label refers to the continued values pushed to s + i0.\n");
     rc = show_path(&w1, f, "2. From the physical region down through the real axis above both "
                    "thresholds,", "5+i0; 5-1i; 2.5-1i; 2.5+1i; 5+1i",
                    "   then left below the axis and up again between the thresholds.", 0);
     if (rc)
         goto cleanup;
-    printf("   Crossing the axis at s = 5 (above both thresholds) led from (%s) to (%s).\n"
+    fprintf(OUT, "   Crossing the axis at s = 5 (above both thresholds) led from (%s) to (%s).\n"
            "   Crossing it at s = 2.5 (between them) led from (%s) to (%s): only the\n"
            "   momentum whose threshold lies to the left of the crossing changed sides.\n",
            w1.label[0], w1.label[1], w1.label[2], w1.label[3]);
@@ -319,7 +392,7 @@ int cmd_demo(int argc, char **argv)
         goto cleanup;
     {
         char rb[64];
-        printf("   The loop starts on (%s) and ends on (%s), while the product rho1 rho2\n"
+        fprintf(OUT, "   The loop starts on (%s) and ends on (%s), while the product rho1 rho2\n"
                "   comes back multiplied by %s.  A formula that only looks at the\n"
                "   product cannot tell these sheets apart; the momenta can.\n\n",
                w2.label[0], w2.label[7], cfmt(rb, sizeof rb, w2.ratio));
@@ -330,7 +403,7 @@ int cmd_demo(int argc, char **argv)
     rc = integral_section();
     if (rc)
         goto cleanup;
-    printf(
+    fprintf(OUT, 
            "\nTry it on your own functions:\n"
            "   sheetwalk points -f \"%s\"\n"
            "   sheetwalk trace  -f \"%s\" -p \"5+i0; 5-1i; 2.5-1i\"\n"
@@ -339,6 +412,16 @@ int cmd_demo(int argc, char **argv)
            "   sheetwalk audit  -f \"sqrt(z*(z-4))/z\" -p \"0.5+i0; 6+i0\"\n",
            FUNC, FUNC);
 cleanup:
+    if (DOC) {
+        if (rc == 0)
+            cli_emit(DOC);
+        else
+            json_decref(DOC);
+        DOC = NULL;
+    }
+    if (OUT && OUT != stdout)
+        fclose(OUT);
+    OUT = stdout;
     sw_points_clear(&pts);
     sw_func_free(f);
     cli_clear(&c);
