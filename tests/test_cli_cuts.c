@@ -225,12 +225,39 @@ static void test_bad_cut_input(void **state)
     }
 }
 
+/* The demo as one JSON document.  Its integral has a closed form:
+ * int_a^b sqrt((x-a)(b-x)) / (x - p) dx = pi ((a+b)/2 - p + sgn(p-b) sqrt((p-a)(p-b)))
+ * for real p outside [a, b] (common practice, no source), combined by partial
+ * fractions 1/(x(x-6)) = (1/(x-6) - 1/x)/6; a loop around both thresholds flips
+ * both channel momenta (common practice, no source). */
+static void test_demo_json(void **state)
+{
+    (void)state;
+    const char *a[] = {"", "demo", "--json", NULL};
+    json_t *d = run_json(NULL, a, 0);
+    json_t *in = json_object_get(d, "integral");
+    assert_non_null(in);
+    double i0 = PI * (2.5 - 2.0), i6 = PI * (2.5 - 6.0 + sqrt(10.0));
+    close_to(jc(json_object_get(in, "direct")), CMPLX(0, (i6 - i0) / 6), 1e-12, "direct");
+    close_to(jc(json_object_get(in, "contour")), CMPLX(0, (i6 - i0) / 6), 1e-10, "contour");
+    json_t *pts = json_object_get(json_object_get(d, "loop"), "points");
+    assert_string_equal(json_string_value(json_object_get(json_array_get(pts, 0), "sheet")), "+,+");
+    assert_string_equal(
+        json_string_value(json_object_get(json_array_get(pts, json_array_size(pts) - 1), "sheet")),
+        "-,-");
+    json_t *dis = json_object_get(json_object_get(d, "audit"), "discontinuities");
+    assert_int_equal(json_array_size(dis), 1);
+    /* sqrt(s(s-4)) at s + i0: Im(s(s-4)) = (2s-4) 0+ changes sign at s = 2 */
+    close_to(jc(json_object_get(json_array_get(dis, 0), "z")), 2, 1e-10, "audit jump");
+    json_decref(d);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_cuts_json),       cmocka_unit_test(test_which_json),
         cmocka_unit_test(test_crossings_and_word), cmocka_unit_test(test_batch),
-        cmocka_unit_test(test_bad_cut_input),
+        cmocka_unit_test(test_bad_cut_input),    cmocka_unit_test(test_demo_json),
     };
     return cmocka_run_group_tests_name("cli_cuts", tests, NULL, NULL);
 }
