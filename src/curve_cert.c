@@ -32,6 +32,10 @@
 
 #include "curve_internal.h"
 
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
+
 /* ------------------------------------------------------------------------ */
 /* Krawczyk's test on disks, in double precision.
  *
@@ -116,23 +120,64 @@ static double abs_ub(double x, double y)
 }
 
 /* Taylor shift in the row index, for every column at once: RE + i IM holds
- * deg+1 rows of LEN entries; for each column k the entries p_j (row j) are
- * the coefficients of p(x) = sum_j p_j x^j, replaced by those of p(x + s)
- * (repeated synthetic division, deg (deg + 1) / 2 multiply-adds per column;
- * the inner loop runs along a row, contiguous). */
-static void shift_columns(double *re, double *im, long deg, long len, double sr, double si)
+ * deg+1 rows of LD entries (LD even; entries past the used columns are
+ * padding, shifted along but never read); for each column k the entries p_j
+ * (row j) are the coefficients of p(x) = sum_j p_j x^j, replaced by those of
+ * p(x + s) (repeated synthetic division, deg (deg + 1) / 2 multiply-adds per
+ * column; the inner loop runs along a row, contiguous).  Each operation is
+ * the same as in the plain loop
+ *     for i < deg, for j = deg-1 down to i: p_j += s p_{j+1},
+ * in the same order for every entry (two rows of a pass are swept together,
+ * two columns per SSE2 instruction), so the results are bit for bit those
+ * of that loop and the error analysis above applies unchanged. */
+static void shift_columns(double *restrict re, double *restrict im, long deg, long ld, double sr,
+                          double si)
 {
-    for (long i = 0; i < deg; i++)
-        for (long j = deg - 1; j >= i; j--) {
-            double *ar = re + j * len, *ai = im + j * len;
-            const double *br = re + (j + 1) * len, *bi = im + (j + 1) * len;
-            for (long k = 0; k < len; k++) {
+#if defined(__SSE2__)
+    const __m128d vsr = _mm_set1_pd(sr), vsi = _mm_set1_pd(si);
+#endif
+    for (long i = 0; i < deg; i++) {
+        long j = deg - 1;
+        for (; j - 1 >= i; j -= 2) {
+            double *a1r = re + j * ld, *a1i = im + j * ld;
+            double *a0r = a1r - ld, *a0i = a1i - ld;
+            const double *br = a1r + ld, *bi = a1i + ld;
+#if defined(__SSE2__)
+            for (long k = 0; k < ld; k += 2) {
+                __m128d xr = _mm_load_pd(br + k), xi = _mm_load_pd(bi + k);
+                __m128d yr = _mm_add_pd(_mm_load_pd(a1r + k),
+                                        _mm_sub_pd(_mm_mul_pd(vsr, xr), _mm_mul_pd(vsi, xi)));
+                __m128d yi = _mm_add_pd(_mm_load_pd(a1i + k),
+                                        _mm_add_pd(_mm_mul_pd(vsr, xi), _mm_mul_pd(vsi, xr)));
+                _mm_store_pd(a1r + k, yr);
+                _mm_store_pd(a1i + k, yi);
+                _mm_store_pd(a0r + k, _mm_add_pd(_mm_load_pd(a0r + k),
+                                                 _mm_sub_pd(_mm_mul_pd(vsr, yr), _mm_mul_pd(vsi, yi))));
+                _mm_store_pd(a0i + k, _mm_add_pd(_mm_load_pd(a0i + k),
+                                                 _mm_add_pd(_mm_mul_pd(vsr, yi), _mm_mul_pd(vsi, yr))));
+            }
+#else
+            for (long k = 0; k < ld; k++) {
+                double yr = a1r[k] + (sr * br[k] - si * bi[k]);
+                double yi = a1i[k] + (sr * bi[k] + si * br[k]);
+                a1r[k] = yr;
+                a1i[k] = yi;
+                a0r[k] += sr * yr - si * yi;
+                a0i[k] += sr * yi + si * yr;
+            }
+#endif
+        }
+        if (j >= i) {
+            double *ar = re + j * ld, *ai = im + j * ld;
+            const double *br = ar + ld, *bi = ai + ld;
+            for (long k = 0; k < ld; k++) {
                 double pr = sr * br[k] - si * bi[k];
                 double pi = sr * bi[k] + si * br[k];
                 ar[k] += pr;
                 ai[k] += pi;
             }
         }
+    }
 }
 
 /* sep[i] = distance from w[i] to the nearest other entry, from squared
@@ -196,9 +241,13 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
     long n = cv->n, m = cv->m, i, j, k;
     long L = 3 * (m + n);
     double gamma = 3.01 * U_ROUND * (double)L;
-    /* z-shifted coefficients, stored transposed: zr[k * (n+1) + j] is the
-     * coefficient of t^k w^j, so the z shift runs along rows */
-    double zr[D1 * D1], zi[D1 * D1], er[D1 * D1], ei[D1 * D1];
+    /* z-shifted coefficients, stored transposed: zr[k * ldz + j] is the
+     * coefficient of t^k w^j, so the z shift runs along rows; rows padded
+     * to an even length (ldz >= n+1, ldw >= m+1) and 16-byte aligned for
+     * shift_columns */
+    _Alignas(16) double zr[D1 * (D1 + 1)], zi[D1 * (D1 + 1)], er[D1 * (D1 + 1)],
+        ei[D1 * (D1 + 1)];
+    long ldz = (n + 2) & ~1L, ldw = (m + 2) & ~1L;
     double rmax[SW_CURVE_MAX_DEGREE], Rg[D1], s0v[SW_CURVE_MAX_DEGREE], s1v[SW_CURVE_MAX_DEGREE];
     double complex zc = 0.5 * (z0 + z1);
     double delta, X, azc;
@@ -239,12 +288,15 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         Rg[j] = s;
     }
     /* shift in z: for each j, a_j(zc + t) */
-    for (j = 0; j <= n; j++)
-        for (k = 0; k <= m; k++) {
-            zr[k * (n + 1) + j] = creal(cv->c[j * (m + 1) + k]);
-            zi[k * (n + 1) + j] = cimag(cv->c[j * (m + 1) + k]);
+    for (k = 0; k <= m; k++) {
+        for (j = 0; j <= n; j++) {
+            zr[k * ldz + j] = creal(cv->c[j * (m + 1) + k]);
+            zi[k * ldz + j] = cimag(cv->c[j * (m + 1) + k]);
         }
-    shift_columns(zr, zi, m, n + 1, creal(zc), cimag(zc));
+        for (; j < ldz; j++)
+            zr[k * ldz + j] = zi[k * ldz + j] = 0;
+    }
+    shift_columns(zr, zi, m, ldz, creal(zc), cimag(zc));
 
     for (i = 0; i < n; i++) {
         double complex c = 0.5 * (w0[i] + w1[i]);
@@ -252,17 +304,20 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         double S0 = 0, S[D1], ay, A, Aerr, uf, c10, yr, yi, er10, ei10, den;
         double rho;
         int t, proven = 0, clean = 0;
-        /* transpose into er[j * (m+1) + k] (coefficient of t^k w^j) and
+        /* transpose into er[j * ldw + k] (coefficient of t^k w^j) and
          * shift in w at c */
-        for (k = 0; k <= m; k++)
-            for (j = 0; j <= n; j++) {
-                er[j * (m + 1) + k] = zr[k * (n + 1) + j];
-                ei[j * (m + 1) + k] = zi[k * (n + 1) + j];
+        for (j = 0; j <= n; j++) {
+            for (k = 0; k <= m; k++) {
+                er[j * ldw + k] = zr[k * ldz + j];
+                ei[j * ldw + k] = zi[k * ldz + j];
             }
-        shift_columns(er, ei, n, m + 1, creal(c), cimag(c));
+            for (; k < ldw; k++)
+                er[j * ldw + k] = ei[j * ldw + k] = 0;
+        }
+        shift_columns(er, ei, n, ldw, creal(c), cimag(c));
         /* Y = 1 / E_10 (any non-zero Y is valid; this one contracts) */
-        er10 = er[1 * (m + 1) + 0];
-        ei10 = ei[1 * (m + 1) + 0];
+        er10 = er[1 * ldw + 0];
+        ei10 = ei[1 * ldw + 0];
         den = er10 * er10 + ei10 * ei10;
         if (!(den > 0) || !isfinite(den)) {
             *retry = 1;
@@ -281,7 +336,7 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         /* S0 = sum_k |E_0k| delta^k;  S[j] = sum_k |E_jk| delta^k for
          * j >= 1, without E_10 */
         for (j = 0; j <= n; j++) {
-            const double *rr = er + j * (m + 1), *ii = ei + j * (m + 1);
+            const double *rr = er + j * ldw, *ii = ei + j * ldw;
             double s = 0;
             for (k = m; k >= (j == 1 ? 1 : 0); k--)
                 s = s * delta + fmax(abs_ub(rr[k], ii[k]), FLOOR);
