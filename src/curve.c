@@ -602,6 +602,22 @@ double sw_fiber_sep(const double complex *w, size_t n, size_t i)
     return d;
 }
 
+/* sep[i] = sw_fiber_sep(w, n, i) for every i, bit for bit, with each
+ * distance computed once (|w_i - w_j| and |w_j - w_i| are the same double:
+ * the differences are exact negatives and cabs is even in each part). */
+static void fiber_seps(double *sep, const double complex *w, size_t n)
+{
+    size_t i, j;
+    for (i = 0; i < n; i++)
+        sep[i] = INFINITY;
+    for (i = 0; i < n; i++)
+        for (j = i + 1; j < n; j++) {
+            double t = cabs(w[i] - w[j]);
+            if (t < sep[i]) sep[i] = t;
+            if (t < sep[j]) sep[j] = t;
+        }
+}
+
 /* p(x) and p'(x) for p = sum a_k x^k, degree d. */
 static void horner2(double complex *p, double complex *dp, const double complex *a, int d,
                     double complex x)
@@ -867,6 +883,7 @@ sw_step_result sw_curve_step(double complex *w1, const sw_curve *cv, double comp
     long n = cv->n, i, j;
     double complex A[SW_CURVE_MAX_DEGREE + 1], dA[SW_CURVE_MAX_DEGREE + 1];
     double complex p[SW_CURVE_MAX_DEGREE];
+    double dpv[SW_CURVE_MAX_DEGREE], d0v[SW_CURVE_MAX_DEGREE];
     double complex h = z1 - z0;
 
     coeffs_at(A, dA, cv, z0);
@@ -885,9 +902,11 @@ sw_step_result sw_curve_step(double complex *w1, const sw_curve *cv, double comp
     coeffs_at(A, NULL, cv, z1);
     if (cabs(A[n]) <= LEAD_ZERO_TOL * lead_scale(cv, z1))
         return SW_STEP_SINGULAR;
+    fiber_seps(dpv, p, (size_t)n);
+    fiber_seps(d0v, w0, (size_t)n);
     for (i = 0; i < n; i++) {
-        double dp = sw_fiber_sep(p, (size_t)n, (size_t)i);
-        double d0 = n > 1 ? sw_fiber_sep(w0, (size_t)n, (size_t)i) : INFINITY;
+        double dp = dpv[i];
+        double d0 = d0v[i];
         double complex w = p[i];
         int it, conv = 0;
         double prev = INFINITY;
@@ -1045,9 +1064,12 @@ static sw_step_result certify_pieces(const sw_curve *cv, double complex z0,
     double ratio = 0, t = 0, h, hmin;
     long k;
     double complex cur[SW_CURVE_MAX_DEGREE], nxt[SW_CURVE_MAX_DEGREE], zc = z0;
-    for (i = 0; i < n && n > 1; i++) {
-        double s = fmin(sw_fiber_sep(w0, n, i), sw_fiber_sep(w1, n, i));
-        ratio = fmax(ratio, cabs(w1[i] - w0[i]) / s);
+    if (n > 1) {
+        double s0v[SW_CURVE_MAX_DEGREE], s1v[SW_CURVE_MAX_DEGREE];
+        fiber_seps(s0v, w0, n);
+        fiber_seps(s1v, w1, n);
+        for (i = 0; i < n; i++)
+            ratio = fmax(ratio, cabs(w1[i] - w0[i]) / fmin(s0v[i], s1v[i]));
     }
     /* the Krawczyk contraction also needs P_w to change little across a
      * piece: |P_wz / P_w| |dz| small (P_wz from the derivative coefficients) */

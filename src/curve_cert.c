@@ -180,6 +180,38 @@ static void shift_columns(double *restrict re, double *restrict im, long deg, lo
     }
 }
 
+/* av[k] = max(abs_ub(re[k], im[k]), FLOOR) for k < cnt (cnt even, arrays
+ * 16-byte aligned), the same value as the scalar expression bit for bit
+ * (sqrt and the products and sums are correctly rounded in SSE2 as in scalar
+ * code) except that a NaN, which only an overflow in the shifts can produce,
+ * gives +infinity (so no bound built from it can pass a test) instead of
+ * FLOOR. */
+static void abs_floor(double *restrict av, const double *restrict re, const double *restrict im,
+                      long cnt)
+{
+#if defined(__SSE2__)
+    const __m128d sign = _mm_set1_pd(-0.0), tiny = _mm_set1_pd(1e-140),
+                  big = _mm_set1_pd(DBL_MAX), inf = _mm_set1_pd(INFINITY),
+                  floor_ = _mm_set1_pd(FLOOR);
+    for (long k = 0; k < cnt; k += 2) {
+        __m128d x = _mm_load_pd(re + k), y = _mm_load_pd(im + k);
+        __m128d a = _mm_add_pd(_mm_andnot_pd(sign, x), _mm_andnot_pd(sign, y));
+        __m128d q = _mm_sqrt_pd(_mm_add_pd(_mm_mul_pd(x, x), _mm_mul_pd(y, y)));
+        /* the 1-norm when a < 1e-140 or a is not finite (not a <= DBL_MAX) */
+        __m128d use_a = _mm_or_pd(_mm_cmplt_pd(a, tiny), _mm_cmpnle_pd(a, big));
+        __m128d r = _mm_or_pd(_mm_and_pd(use_a, a), _mm_andnot_pd(use_a, q));
+        __m128d nan = _mm_cmpunord_pd(r, r);
+        r = _mm_or_pd(_mm_and_pd(nan, inf), _mm_andnot_pd(nan, r));
+        _mm_store_pd(av + k, _mm_max_pd(r, floor_));
+    }
+#else
+    for (long k = 0; k < cnt; k++) {
+        double r = abs_ub(re[k], im[k]);
+        av[k] = isnan(r) ? INFINITY : fmax(r, FLOOR);
+    }
+#endif
+}
+
 /* sep[i] = distance from w[i] to the nearest other entry, from squared
  * distances (one square root per entry; relative error a few u, far inside
  * CERT_GEOM_MARGIN; an underflowing square only makes a distance smaller,
@@ -246,7 +278,7 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
      * to an even length (ldz >= n+1, ldw >= m+1) and 16-byte aligned for
      * shift_columns */
     _Alignas(16) double zr[D1 * (D1 + 1)], zi[D1 * (D1 + 1)], er[D1 * (D1 + 1)],
-        ei[D1 * (D1 + 1)];
+        ei[D1 * (D1 + 1)], av[D1 * (D1 + 1)];
     long ldz = (n + 2) & ~1L, ldw = (m + 2) & ~1L;
     double rmax[SW_CURVE_MAX_DEGREE], Rg[D1], s0v[SW_CURVE_MAX_DEGREE], s1v[SW_CURVE_MAX_DEGREE];
     double complex zc = 0.5 * (z0 + z1);
@@ -335,15 +367,18 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         }
         /* S0 = sum_k |E_0k| delta^k;  S[j] = sum_k |E_jk| delta^k for
          * j >= 1, without E_10 */
-        for (j = 0; j <= n; j++) {
-            const double *rr = er + j * ldw, *ii = ei + j * ldw;
-            double s = 0;
-            for (k = m; k >= (j == 1 ? 1 : 0); k--)
-                s = s * delta + fmax(abs_ub(rr[k], ii[k]), FLOOR);
-            if (j == 1)
-                s *= delta;
-            if (j == 0) S0 = s; else S[j] = s;
-        }
+        abs_floor(av, er, ei, (n + 1) * ldw);
+        /* by Horner's rule in delta, the rows side by side (independent
+         * chains): row j gets s = s delta + av[j][k] for k = m down to 1,
+         * then the k = 0 term (row 1: a factor delta instead) */
+        for (j = 0; j <= n; j++)
+            S[j] = av[j * ldw + m];
+        for (k = m - 1; k >= 1; k--)
+            for (j = 0; j <= n; j++)
+                S[j] = S[j] * delta + av[j * ldw + k];
+        for (j = 0; j <= n; j++)
+            S[j] = j == 1 ? (m >= 1 ? S[j] * delta : 0) : (m >= 1 ? S[j] * delta + av[j * ldw] : S[j]);
+        S0 = S[0];
         /* underflow in the shifts: at most 2^-1074 per component and
          * operation, grown by at most (1 + |zc|)^m (1 + |c|)^n, weighted by
          * at most (n+1)^2 (m+1) n max(1, delta)^m max(1, rho)^n (bounded
