@@ -41,24 +41,35 @@
  *
  * The argument.  Let Z be the disk |z - zc| <= delta (it contains the
  * segment), W = D(c, rho), Y != 0 any complex number, and for z in Z let
- * N(w) = w - Y P(z, w).  For w = c + v in W,
- *     N(w) - c = -Y P(z, c) + int_0^1 (1 - Y P_w(z, c + s v)) ds  v,
- * so with   A >= sup_Z |Y P(z, c)|   and   B >= sup_{Z x W} |1 - Y P_w(z, w)|,
- * A + B rho < rho implies that N maps W into its interior and, since then
- * B < 1, is a contraction there (|N'| <= B on the convex set W).  By Banach's
- * fixed-point theorem N has exactly one fixed point in W, i.e. P(z, .) has
- * exactly one root in W, and it is simple (|1 - Y P_w| < 1 there).  This is
- * Krawczyk's operator K(Z, W) = c - Y P(Z, c) + (1 - Y P_w(Z, W))(W - c) with
- * the condition K inside int W, written with disk bounds instead of interval
- * hulls (the disk form of the contraction argument, e.g. S. M. Rump,
- * "Verification methods", Acta Numerica 19 (2010) 287-449, section 13).
+ * N(w) = w - Y P(z, w).  With E_j(z) = P^(j)(z, c) / j! (w-derivatives),
+ * for w = c + v in W exactly (Taylor's formula for the polynomial P(z, .))
+ *     N(w) - c = -Y P(z, c) + (1 - Y E_1(z)) v - Y sum_{j>=2} E_j(z) v^j.
+ * So with   A  >= sup_Z |Y P(z, c)|,
+ *           Bm >= sup_Z (|1 - Y E_1(z)| + |Y| sum_{j>=2} |E_j(z)| rho^(j-1)),
+ *           Bc >= sup_{Z x W} |1 - Y P_w(z, w)|,
+ * A + Bm rho < rho implies that N maps W into its interior, and Bc < 1 that
+ * N is a contraction there (|N'| <= Bc on the convex set W).  By Banach's
+ * fixed-point theorem (e.g. E. Zeidler, Nonlinear Functional Analysis and
+ * its Applications I, Springer 1986, Theorem 1.A: a contraction of a closed
+ * set into itself) N has exactly one fixed point in W, i.e. P(z, .) has
+ * exactly one root in W, and it is simple (|1 - Y P_w| < 1 there).  Since
+ * Bm <= Bc (the bounds below: the same terms without the factors j), this
+ * asks less than Krawczyk's condition A + Bc rho < rho (which implies both),
+ * i.e. K(Z, W) = c - Y P(Z, c) + (1 - Y P_w(Z, W))(W - c) inside int W,
+ * written with disk bounds instead of interval hulls (the disk form of the
+ * contraction argument, e.g. S. M. Rump, "Verification methods", Acta
+ * Numerica 19 (2010) 287-449, section 13): the self-map is bounded by the
+ * exact Taylor remainder, sum |E_j| rho^j, instead of the mean-value form,
+ * sum j |E_j| rho^j, which roughly halves the curvature term and lets the
+ * same pieces be proven with larger margins (fewer refused pieces).
  *
  * The bounds.  Expand the polynomial at the centre of the step:
  *     P(zc + t, c + v) = sum_{j,k} E_jk t^k v^j.
  * Then for |t| <= delta, |v| <= rho
  *     |Y P(zc + t, c)|       <= |Y| sum_k |E_0k| delta^k,
  *     |1 - Y P_w(zc+t, c+v)| <= |1 - Y E_10|
- *                               + |Y| sum_{j>=1, (j,k) != (1,0)} j |E_jk| delta^k rho^(j-1).
+ *                               + |Y| sum_{j>=1, (j,k) != (1,0)} j |E_jk| delta^k rho^(j-1)
+ * (this is Bc; Bm is the same sum without the factors j).
  * These majorant bounds are centred to every order: the large terms of P
  * that cancel near a root never enter, which is what makes long steps and
  * clustered or large roots provable (a ball evaluation over the boxes adds
@@ -83,7 +94,8 @@
  * the bounds above, these errors sum to the values of one polynomial with
  * non-negative coefficients,
  *     R(x, y) = sum (gamma |c_jk| + cdev_jk) x^k y^j,
- * namely R(|zc| + delta, |c|) in A and R_y(|zc| + delta, |c| + rho) in B.
+ * namely R(|zc| + delta, |c|) in A and R_y(|zc| + delta, |c| + rho) in Bc
+ * and in Bm (whose weights, without the factors j >= 1, are smaller).
  * Underflow in the shifts adds at most 2^-1074 per component and operation,
  * carried through the rest of the (linear) shifts with a growth of at most
  * (1 + |zc|)^m (1 + |c|)^n: an absolute term bounds it.
@@ -232,37 +244,54 @@ static void separations(double *sep, const double complex *w, long n)
     }
 }
 
-/* B(rho) >= sup |1 - Y P_w| over Z x D(c, rho) (see above) and, in B0, the
- * same without the rounding-error terms; returns 1 when the test
- * A + B rho < rho holds (with the rounding of that last sum covered). */
+/* The test of the argument above at radius rho:
+ *     Bc(rho) < 1   and   A + Bm(rho) rho < rho,
+ * Bc(rho) >= sup |1 - Y P_w| over Z x D(c, rho) (the contraction),
+ * Bm(rho) = the same sum without the factors j (the self-map); both with the
+ * rounding-error term R_y(X, |c| + rho), which bounds the errors of either
+ * sum.  B0 gets Bc without the rounding-error terms.  Returns 1 when the test
+ * holds (with the rounding of the last sum covered). */
 static int radius_test(double *Bout, double *B0out, double rho, double A, double c10, double ay,
                        double uf, double ac, const double *S, const double *Rg, long n)
 {
-    double bs = 0, rs = 0, y = ac + rho, B;
+    double bs = 0, bm = 0, rs = 0, y = ac + rho, B, Bm, err;
     long j;
     *Bout = INFINITY;
     *B0out = INFINITY;
     if (!(rho >= RADIUS_MIN))
         return 0;
-    /* sum_{j>=1} j S[j] rho^(j-1) and R_y(X, |c| + rho) */
+    /* sum_{j>=1} j S[j] rho^(j-1), sum_{j>=1} S[j] rho^(j-1) and
+     * R_y(X, |c| + rho) */
     for (j = n; j >= 1; j--) {
         bs = bs * rho + (double)j * S[j];
+        bm = bm * rho + S[j];
         rs = rs * y + (double)j * Rg[j];
     }
+    err = ay * (rs + uf);
     *B0out = c10 + ay * bs;
-    B = (*B0out + ay * (rs + uf)) * SLACK;
+    B = (*B0out + err) * SLACK;
+    Bm = (c10 + ay * bm + err) * SLACK;
     *Bout = B;
-    return isfinite(B) && (A + B * rho) * (1 + 4 * U_ROUND) < rho;
+    return isfinite(B) && B < 1 && (A + Bm * rho) * (1 + 4 * U_ROUND) < rho;
 }
 
-/* rho - A - B(rho) rho (a search criterion only: the proof is radius_test). */
+/* min(rho - A - Bm(rho) rho, rho - Bc(rho) rho), concave in rho (a search
+ * criterion only: the proof is radius_test). */
 static double radius_margin(double rho, double A, double c10, double ay, double uf, double ac,
                             const double *S, const double *Rg, long n)
 {
-    double B, B0;
+    double B, B0, bm = 0, rs = 0, y = ac + rho, Bm;
+    long j;
     if (radius_test(&B, &B0, rho, A, c10, ay, uf, ac, S, Rg, n))
         return 1;
-    return isfinite(B) ? rho - A - B * rho : -INFINITY;
+    if (!isfinite(B))
+        return -INFINITY;
+    for (j = n; j >= 1; j--) {
+        bm = bm * rho + S[j];
+        rs = rs * y + (double)j * Rg[j];
+    }
+    Bm = (c10 + ay * bm + ay * (rs + uf)) * SLACK;
+    return fmin(rho - A - Bm * rho, rho - B * rho);
 }
 
 static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
@@ -278,7 +307,7 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
      * to an even length (ldz >= n+1, ldw >= m+1) and 16-byte aligned for
      * shift_columns */
     _Alignas(16) double zr[D1 * (D1 + 1)], zi[D1 * (D1 + 1)], er[D1 * (D1 + 1)],
-        ei[D1 * (D1 + 1)], av[D1 * (D1 + 1)];
+        ei[D1 * (D1 + 1)], av[D1 * (D1 + 1)], tr[D1 * (D1 + 1)], ti[D1 * (D1 + 1)];
     long ldz = (n + 2) & ~1L, ldw = (m + 2) & ~1L;
     double rmax[SW_CURVE_MAX_DEGREE], Rg[D1], s0v[SW_CURVE_MAX_DEGREE], s1v[SW_CURVE_MAX_DEGREE];
     double complex zc = 0.5 * (z0 + z1);
@@ -316,7 +345,10 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         const double *ca = cv->cabs + j * (m + 1), *cd = cv->cdev + j * (m + 1);
         double s = 0;
         for (k = m; k >= 0; k--)
-            s = s * X + fmax(gamma * ca[k] + cd[k], FLOOR);
+        {
+            double v = gamma * ca[k] + cd[k];   /* >= 0, not NaN: fmax inline */
+            s = s * X + (v > FLOOR ? v : FLOOR);
+        }
         Rg[j] = s;
     }
     /* shift in z: for each j, a_j(zc + t) */
@@ -329,6 +361,16 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
             zr[k * ldz + j] = zi[k * ldz + j] = 0;
     }
     shift_columns(zr, zi, m, ldz, creal(zc), cimag(zc));
+    /* transpose into tr[j * ldw + k] (coefficient of t^k w^j), once for
+     * all sheets */
+    for (j = 0; j <= n; j++) {
+        for (k = 0; k <= m; k++) {
+            tr[j * ldw + k] = zr[k * ldz + j];
+            ti[j * ldw + k] = zi[k * ldz + j];
+        }
+        for (; k < ldw; k++)
+            tr[j * ldw + k] = ti[j * ldw + k] = 0;
+    }
 
     for (i = 0; i < n; i++) {
         double complex c = 0.5 * (w0[i] + w1[i]);
@@ -336,16 +378,9 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
         double S0 = 0, S[D1], ay, A, Aerr, uf, c10, yr, yi, er10, ei10, den;
         double rho;
         int t, proven = 0, clean = 0;
-        /* transpose into er[j * ldw + k] (coefficient of t^k w^j) and
-         * shift in w at c */
-        for (j = 0; j <= n; j++) {
-            for (k = 0; k <= m; k++) {
-                er[j * ldw + k] = zr[k * ldz + j];
-                ei[j * ldw + k] = zi[k * ldz + j];
-            }
-            for (; k < ldw; k++)
-                er[j * ldw + k] = ei[j * ldw + k] = 0;
-        }
+        /* shift in w at c */
+        memcpy(er, tr, (size_t)((n + 1) * ldw) * sizeof *er);
+        memcpy(ei, ti, (size_t)((n + 1) * ldw) * sizeof *ei);
         shift_columns(er, ei, n, ldw, creal(c), cimag(c));
         /* Y = 1 / E_10 (any non-zero Y is valid; this one contracts) */
         er10 = er[1 * ldw + 0];
@@ -399,9 +434,10 @@ static sw_step_result certify_disks(const sw_curve *cv, double complex z0,
             *retry = 1;
             return SW_STEP_UNPROVEN;
         }
-        /* radius: the test asks h(rho) = rho (1 - B(rho)) > A, where B is a
-         * polynomial in rho with non-negative coefficients, so h is concave
-         * on [0, rmax].  Try a radius a little above the smallest feasible
+        /* radius: the test asks rho (1 - Bm(rho)) > A and rho (1 - Bc(rho))
+         * > 0, where Bm, Bc are polynomials in rho with non-negative
+         * coefficients, so h = min(rho (1 - Bm) - A, rho (1 - Bc)) is
+         * concave on [0, rmax].  Try a radius a little above the smallest feasible
          * one first (usually enough); else take the maximum of h by golden
          * section search (its test is as valid as any other radius's). */
         {
