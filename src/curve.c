@@ -829,7 +829,7 @@ sw_status sw_curve_fiber(double complex *roots, const sw_curve *cv, double compl
     coeffs_at(A, NULL, cv, z);
     if (cabs(A[n]) <= LEAD_ZERO_TOL * lead_scale(cv, z))
         return sw_error_set(err, SW_ESINGULAR,
-                            "the leading coefficient in w vanishes at z = %.17g%+.17gi: a sheet has a pole there",
+                            "the leading coefficient in w vanishes at z = %.10g%+.10gi: a sheet has a pole there",
                             creal(z), cimag(z));
     if (n == 1) {
         roots[0] = -A[0] / A[1];
@@ -837,7 +837,7 @@ sw_status sw_curve_fiber(double complex *roots, const sw_curve *cv, double compl
     }
     if (aberth(roots, A, (int)n, 500) != 0)
         return sw_error_set(err, SW_ETOLERANCE,
-                            "root finder did not converge for the fiber at z = %.17g%+.17gi",
+                            "root finder did not converge for the fiber at z = %.10g%+.10gi",
                             creal(z), cimag(z));
     /* Newton polish (two steps; the Aberth result is already at backward
      * error ~eps, this only helps ill-scaled fibers) */
@@ -852,14 +852,14 @@ sw_status sw_curve_fiber(double complex *roots, const sw_curve *cv, double compl
     }
     for (i = 0; i < n; i++) {
         if (!isfinite(creal(roots[i])) || !isfinite(cimag(roots[i])))
-            return sw_error_set(err, SW_ESINGULAR, "a root is not finite at z = %.17g%+.17gi",
+            return sw_error_set(err, SW_ESINGULAR, "a root is not finite at z = %.10g%+.10gi",
                                 creal(z), cimag(z));
         if (cabs(roots[i]) > big) big = cabs(roots[i]);
     }
     for (i = 0; i < n; i++)
         if (sw_fiber_sep(roots, (size_t)n, (size_t)i) <= FIBER_COLLISION_TOL * fmax(big, DBL_MIN))
             return sw_error_set(err, SW_ESINGULAR,
-                                "two sheets meet at z = %.17g%+.17gi (a root of the discriminant)",
+                                "two sheets meet at z = %.10g%+.10gi (a root of the discriminant)",
                                 creal(z), cimag(z));
     return SW_OK;
 }
@@ -1011,7 +1011,7 @@ static sw_status curve_germ_at(sw_germ *g, const void *impl, double complex z, i
         sw_step_result r = carry(g->s, cv, z0, z);
         if (r != SW_STEP_OK)
             return sw_error_set(err, SW_ESINGULAR,
-                                "z = %.17g%+.17gi is a branch point or pole of the curve: no bank value",
+                                "z = %.10g%+.10gi is a branch point or pole of the curve: no bank value",
                                 creal(z), cimag(z));
     }
     g->z = z;
@@ -1028,7 +1028,7 @@ static sw_status curve_germ_at(sw_germ *g, const void *impl, double complex z, i
         if (n > 1 && second != (size_t)-1 &&
             d2 - d1 <= HINT_TIE_TOL * d2 + 4 * DBL_EPSILON * cabs(*hint)) {
             return sw_error_set(err, SW_EAMBIGUOUS,
-                                "sheets %zu and %zu are equally near the value %.17g%+.17gi at z = %.17g%+.17gi",
+                                "sheets %zu and %zu are equally near the value %.10g%+.10gi at z = %.10g%+.10gi",
                                 (best < second ? best : second) + 1, (best < second ? second : best) + 1,
                                 creal(*hint), cimag(*hint), creal(z), cimag(z));
         }

@@ -427,16 +427,7 @@ static int quick_root(const ictx *c, const tline *l, double t, double complex z1
     const sw_trace *tr = &l->tr;
     if (c->ld == NULL || tr->nlog == 0)
         return -1;
-    size_t lo = 0, hi = tr->nlog - 1;
-    if (t <= tr->t[0])
-        hi = 0;
-    while (lo < hi) {
-        size_t mid = (lo + hi + 1) / 2;
-        if (tr->t[mid] <= t)
-            lo = mid;
-        else
-            hi = mid - 1;
-    }
+    size_t lo = sw_trace_log_index(tr, t);
     const double complex *fib = tr->state + lo * tr->len;
     size_t n = tr->len, sheet = (size_t)tr->sheet[lo];
     double complex z0 = tr->z[lo], w0 = fib[sheet];
@@ -2777,19 +2768,7 @@ static int circle_eval(void *arg, double tau, double complex *v, double complex 
     double t = frac * pc->ncircle;
     /* the logged germ nearest below t (the dense log, as sw_trace_germ_at
        reads it, without its per-call measure of a long path) */
-    const sw_trace *tr = &l->tr;
-    size_t lo = 0, hi = tr->nlog - 1;
-    while (lo < hi) {
-        size_t mid = (lo + hi + 1) / 2;
-        if (tr->t[mid] <= t)
-            lo = mid;
-        else
-            hi = mid - 1;
-    }
-    c->g.z = tr->z[lo];
-    c->g.sheet = tr->sheet[lo];
-    c->g.bank = SW_BANK_NONE;
-    memcpy(c->g.s, tr->state + lo * tr->len, tr->len * sizeof *c->g.s);
+    sw_trace_logged_germ(&c->g, &l->tr, t);
     double th = pc->theta0 + pc->orient * tau;
     double complex z = pc->centre + pc->radius * CMPLX(cos(th), sin(th));
     if (tau == 0 || tau == 2 * PI)

@@ -281,7 +281,7 @@ cleanup:
     return st;
 }
 
-size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t)
+size_t sw_trace_log_index(const sw_trace *tr, double t)
 {
     /* binary search for the last logged germ with t_k <= t */
     size_t lo = 0, hi = tr->nlog - 1;
@@ -294,6 +294,12 @@ size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t)
         else
             hi = mid - 1;
     }
+    return lo;
+}
+
+size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t)
+{
+    size_t lo = sw_trace_log_index(tr, t);
     g->z = tr->z[lo];
     g->sheet = tr->sheet[lo];
     g->bank = SW_BANK_NONE;

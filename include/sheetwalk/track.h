@@ -58,6 +58,8 @@ sw_status sw_track_run(sw_trace *tr, const sw_func *f, const sw_germ *start,
  * before it), copied into G (initialised for the traced function); returns
  * its index.  The log must not be empty. */
 size_t sw_trace_logged_germ(sw_germ *g, const sw_trace *tr, double t);
+/* The index of that logged germ, without copying it. */
+size_t sw_trace_log_index(const sw_trace *tr, double t);
 
 /* The germ on the tracked branch at parameter t (from the dense log, without
  * re-choosing the branch).  G must be initialised for F. */
