@@ -2444,6 +2444,33 @@ static int push_end(ictx *c, const zmap *m, const endinfo *ei, sw_end_rule rule)
     return 0;
 }
 
+static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int depth,
+                        double tol_abs, double complex *val, double *abserr, int *ok,
+                        sw_end_rule *rule);
+
+/* Shrinking towards the end: the end rule on [0, X/4] (one level deeper),
+ * Gauss-Kronrod on [X/4, X], each with half the tolerance that a value of
+ * size MAG asks for. */
+static int end_split(ictx *c, const zmap *m, const endinfo *ei, double X, int depth, double mag,
+                     double tol_abs, double complex *val, double *abserr, int *ok,
+                     sw_end_rule *rule)
+{
+    double complex v1, v2;
+    double e1, e2;
+    int ok1, ok2;
+    double tl = target(c, tol_abs, mag, c->l1) / 2;
+    if (end_integral(c, m, ei, X / 4, depth + 1, tl, &v1, &e1, &ok1, rule) != 0)
+        return -1;
+    double l1a = c->l1;
+    if (qag_map(c, m, X / 4, X, tl, &v2, &e2, &ok2) != 0)
+        return -1;
+    c->l1 += l1a;
+    *val = v1 + v2;
+    *abserr = e1 + e2;
+    *ok = ok1 && ok2;
+    return 0;
+}
+
 /* int_0^X F dx at the end x = 0 of M (analysed in EI), splitting towards the
  * end when the rule does not converge on the whole zone. */
 static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int depth,
@@ -2482,20 +2509,7 @@ static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int
                 return 0;
             /* A and B vary too fast for Laguerre on the whole zone (another
                singular point near it): a quarter of it, Gauss-Kronrod beyond */
-            double complex v1, v2;
-            double e1, e2;
-            int ok1, ok2;
-            double tl = target(c, tol_abs, cabs(*val), c->l1) / 2;
-            if (end_integral(c, m, ei, X / 4, depth + 1, tl, &v1, &e1, &ok1, rule) != 0)
-                return -1;
-            double l1a = c->l1;
-            if (qag_map(c, m, X / 4, X, tl, &v2, &e2, &ok2) != 0)
-                return -1;
-            c->l1 += l1a;
-            *val = v1 + v2;
-            *abserr = e1 + e2;
-            *ok = ok1 && ok2;
-            return 0;
+            return end_split(c, m, ei, X, depth, cabs(*val), tol_abs, val, abserr, ok, rule);
         }
         *rule = SW_RULE_QAWS;
         return qaws_log(c, m, ei, X, tol_abs, val, abserr, ok);
@@ -2514,19 +2528,8 @@ static int end_integral(ictx *c, const zmap *m, const endinfo *ei, double X, int
             return 0;
         }
         /* the rest of H's analyticity region is smaller than X: shrink */
-        double complex v1, v2;
-        double e1, e2;
-        int ok1, ok2;
-        double tl = target(c, tol_abs, cabs(Iv), c->l1) / 2;
-        if (end_integral(c, m, ei, X / 4, depth + 1, tl, &v1, &e1, &ok1, rule) != 0)
+        if (end_split(c, m, ei, X, depth, cabs(Iv), tol_abs, val, abserr, ok, rule) != 0)
             return -1;
-        double l1a = c->l1;
-        if (qag_map(c, m, X / 4, X, tl, &v2, &e2, &ok2) != 0)
-            return -1;
-        c->l1 += l1a;
-        *val = v1 + v2;
-        *abserr = e1 + e2;
-        *ok = ok1 && ok2;
         *rule = SW_RULE_JACOBI;
         return 0;
     }
